@@ -1,0 +1,39 @@
+/**
+ * Errors raised by the computational core. Each carries a stable code from the catalogue
+ * (src/api/errors.ts maps codes to HTTP statuses) and, where it applies, the path of the
+ * offending field in dotted/indexed form (e.g. `lossW[3][7]`).
+ */
+export const PROBLEM_CODES = [
+  'invalid-request',
+  'map-invalid',
+  'fit-failed',
+  'drivetrain-invalid',
+  'gearset-invalid',
+  'vehicle-invalid',
+  'cycle-invalid',
+  'sweep-invalid',
+  'table-invalid',
+  'not-found',
+  'too-large',
+  'unknown-machine',
+  'infeasible',
+] as const;
+
+export type ProblemCode = (typeof PROBLEM_CODES)[number];
+
+export class ModelError extends Error {
+  readonly code: ProblemCode;
+  readonly path?: string;
+  constructor(code: ProblemCode, message: string, path?: string) {
+    super(message);
+    this.name = 'ModelError';
+    this.code = code;
+    if (path !== undefined) this.path = path;
+  }
+}
+
+/** Joins a base path and a key or index into `a.b[3].c` form. */
+export function joinPath(base: string | undefined, key: string | number): string {
+  if (typeof key === 'number') return `${base ?? ''}[${key}]`;
+  return base ? `${base}.${key}` : key;
+}
