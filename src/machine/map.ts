@@ -69,18 +69,24 @@ function fail(message: string, path?: string): never {
   throw new ModelError('map-invalid', message, path);
 }
 
-function checkAxis(values: number[], field: string, maxLen: number): void {
+function checkAxis(values: number[], field: string, maxLen: number, bound: number): void {
   if (values.length < 2) fail(`${field} needs at least 2 values`, field);
   if (values.length > maxLen) fail(`${field} has ${values.length} values; at most ${maxLen} are allowed`, field);
   for (let i = 0; i < values.length; i++) {
     const v = values[i];
     if (typeof v !== 'number' || !Number.isFinite(v)) fail(`${field}[${i}] must be a finite number`, `${field}[${i}]`);
+    if (Math.abs(v) > bound) fail(`${field}[${i}] = ${v} is beyond the accepted magnitude ${bound}`, `${field}[${i}]`);
     if (i > 0 && !(v > values[i - 1]!)) fail(`${field} must be strictly ascending (at index ${i})`, `${field}[${i}]`);
   }
 }
 
 /** Largest axis length accepted from a caller (the canonical form may add mirrored torque nodes). */
 export const MAX_AXIS_LENGTH = 400;
+
+/** Magnitude bounds that keep every derived quantity finite (far beyond any real drive unit). */
+export const MAX_SPEED_RPM = 1e6;
+export const MAX_TORQUE_NM = 1e6;
+export const MAX_LOSS_W = 1e9;
 
 /**
  * Validates a grid and builds the canonical map. Makes the zero-speed column symmetric in torque
@@ -90,11 +96,13 @@ export const MAX_AXIS_LENGTH = 400;
  * every other speed unchanged).
  */
 export function buildMachineMap(name: string, g: GridInput, provenance: MapProvenance, maxAxis = MAX_AXIS_LENGTH): MachineMap {
-  checkAxis(g.speedRpm, 'speedRpm', maxAxis);
-  checkAxis(g.torqueNm, 'torqueNm', maxAxis);
+  checkAxis(g.speedRpm, 'speedRpm', maxAxis, MAX_SPEED_RPM);
+  checkAxis(g.torqueNm, 'torqueNm', maxAxis, MAX_TORQUE_NM);
   const nS = g.speedRpm.length;
   if (g.speedRpm[0] !== 0) fail('speedRpm must start at 0', 'speedRpm[0]');
-  if (!(Number.isFinite(g.maxSpeedRpm) && g.maxSpeedRpm > 0)) fail('maxSpeedRpm must be a positive number', 'maxSpeedRpm');
+  if (!(Number.isFinite(g.maxSpeedRpm) && g.maxSpeedRpm > 0 && g.maxSpeedRpm <= MAX_SPEED_RPM)) {
+    fail(`maxSpeedRpm must be a positive number up to ${MAX_SPEED_RPM}`, 'maxSpeedRpm');
+  }
   if (g.speedRpm[nS - 1]! < g.maxSpeedRpm) {
     fail(`speedRpm must reach maxSpeedRpm (${g.maxSpeedRpm}); it ends at ${g.speedRpm[nS - 1]}`, `speedRpm[${nS - 1}]`);
   }
@@ -122,6 +130,7 @@ export function buildMachineMap(name: string, g: GridInput, provenance: MapProve
       const v = row[j];
       if (typeof v !== 'number' || !Number.isFinite(v)) fail(`lossW[${i}][${j}] must be a finite number`, `lossW[${i}][${j}]`);
       if (v < 0) fail(`lossW[${i}][${j}] = ${v} is negative; loss is never below zero`, `lossW[${i}][${j}]`);
+      if (v > MAX_LOSS_W) fail(`lossW[${i}][${j}] = ${v} is beyond the accepted magnitude ${MAX_LOSS_W} W`, `lossW[${i}][${j}]`);
     }
   }
 

@@ -1,0 +1,43 @@
+/** Small helpers shared by routes. */
+import type { FastifyInstance } from 'fastify';
+import type { Drivetrain } from '../../solver/drivetrain.js';
+import { ApiError } from '../errors.js';
+
+/** The built drivetrain and its content hash (document + machines), or a 404. */
+export function drivetrainOr404(app: FastifyInstance, name: string): { dt: Drivetrain; hash: string } {
+  const entry = app.registry.getDrivetrainEntry(name);
+  const dt = entry && app.registry.getDrivetrain(name);
+  if (!entry || !dt) throw new ApiError('not-found', `no drivetrain named "${name}"`);
+  return { dt, hash: app.registry.drivetrainContentHash(entry) };
+}
+
+/** A bounded least-recently-used cache of rendered bodies keyed by content hash. */
+export class BodyCache {
+  private readonly map = new Map<string, { body: string; contentType: string }>();
+  constructor(private readonly capacity: number) {}
+  get(key: string): { body: string; contentType: string } | undefined {
+    const hit = this.map.get(key);
+    if (hit) {
+      this.map.delete(key);
+      this.map.set(key, hit);
+    }
+    return hit;
+  }
+  set(key: string, value: { body: string; contentType: string }): void {
+    this.map.delete(key);
+    this.map.set(key, value);
+    while (this.map.size > this.capacity) this.map.delete(this.map.keys().next().value!);
+  }
+}
+
+/** Parses `from:to:steps` or a comma-separated list from a query string. */
+export function axisFromQuery(text: string | undefined, field: string, fallback: { from: number; to: number; steps: number }): { from: number; to: number; steps: number } | number[] {
+  if (text === undefined || text === '') return fallback;
+  const m = /^\s*(-?[0-9.eE+-]+)\s*:\s*(-?[0-9.eE+-]+)\s*:\s*([0-9]+)\s*$/.exec(text);
+  if (m) return { from: Number(m[1]), to: Number(m[2]), steps: Number(m[3]) };
+  const list = text.split(',').map((s) => Number(s));
+  if (list.length < 2 || list.some((v) => !Number.isFinite(v))) {
+    throw new ApiError('invalid-request', `${field} must be from:to:steps or a comma-separated list of numbers`, field);
+  }
+  return list;
+}

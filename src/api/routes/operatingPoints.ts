@@ -1,0 +1,73 @@
+/** The optimum at wheel operating points, for a stored drivetrain or one sent inline. */
+import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
+import { z } from 'zod';
+import { solvePoints } from '../../solver/point.js';
+import type { Drivetrain } from '../../solver/drivetrain.js';
+import type { Mode } from '../../solver/types.js';
+import { ApiError } from '../errors.js';
+import { errorBodySchema, nameParams } from '../schemas.js';
+import { pointResultSchema, solveOptionsSchema, wheelPointSchema } from './solverSchemas.js';
+
+const BATCH_BODY_LIMIT = 64 * 1024 * 1024;
+/** Large batches are solved in chunks of this many points, yielding to the event loop between them. */
+const CHUNK_POINTS = 2000;
+
+const yieldToEventLoop = () => new Promise<void>((resolve) => setImmediate(resolve));
+
+export const operatingPointRoutes: FastifyPluginAsyncZod = async (app) => {
+  const maxPoints = app.config.maxBatchPoints;
+  const pointsSchema = z.array(wheelPointSchema).min(1).describe(`Wheel points, at most ${maxPoints} per request`);
+  const responses = { 200: z.object({ results: z.array(pointResultSchema) }), 400: errorBodySchema, 404: errorBodySchema, 413: errorBodySchema, 422: errorBodySchema };
+
+  const answer = async (dt: Drivetrain, points: Array<{ wheelSpeedRpm: number; wheelTorqueNm: number }>, modes: Mode[] | undefined, strict: boolean) => {
+    if (points.length > maxPoints) {
+      throw new ApiError('too-large', `${points.length} points in one request; at most ${maxPoints} are allowed — split the batch`, 'points');
+    }
+    app.metrics.solverPoints.inc(points.length);
+    const opts = modes ? { modes, strict } : { strict };
+    if (points.length <= CHUNK_POINTS) return { results: solvePoints(dt, points, opts) };
+    const results = [];
+    for (let i = 0; i < points.length; i += CHUNK_POINTS) {
+      if (i > 0) await yieldToEventLoop();
+      results.push(...solvePoints(dt, points.slice(i, i + CHUNK_POINTS), opts));
+    }
+    return { results };
+  };
+
+  app.post(
+    '/drivetrains/:name/operating-points',
+    {
+      bodyLimit: BATCH_BODY_LIMIT,
+      schema: {
+        tags: ['solver'],
+        summary: 'Optimal split at wheel points (answers in the same order)',
+        params: nameParams,
+        body: z.object({ points: pointsSchema, ...solveOptionsSchema }).strict(),
+        response: responses,
+      },
+    },
+    async (req) => {
+      const dt = app.registry.getDrivetrain(req.params.name);
+      if (!dt) throw new ApiError('not-found', `no drivetrain named "${req.params.name}"`);
+      return answer(dt, req.body.points, req.body.modes, req.body.strict);
+    },
+  );
+
+  app.post(
+    '/operating-points',
+    {
+      bodyLimit: BATCH_BODY_LIMIT,
+      config: { bodyErrorCode: 'invalid-request' },
+      schema: {
+        tags: ['solver'],
+        summary: 'Optimal split for a drivetrain sent inline (machines by name); nothing is stored',
+        body: z.object({ drivetrain: z.unknown().describe('A drivetrain document'), points: pointsSchema, ...solveOptionsSchema }).strict(),
+        response: responses,
+      },
+    },
+    async (req) => {
+      const { dt } = app.registry.buildInline(req.body.drivetrain);
+      return answer(dt, req.body.points, req.body.modes, req.body.strict);
+    },
+  );
+};

@@ -1,0 +1,50 @@
+/** zod schemas of the solver's requests and answers (documentation and validation). */
+import { z } from 'zod';
+import { MODES } from '../../solver/types.js';
+
+export const modeSchema = z.enum(MODES);
+
+export const wheelPointSchema = z
+  .object({
+    wheelSpeedRpm: z.number().min(-1e6).max(1e6).describe('Wheel speed, rpm (negative: reversing); |n| <= 1e6'),
+    wheelTorqueNm: z.number().min(-1e8).max(1e8).describe('Wheel torque, N·m (negative: braking when moving forward); |T| <= 1e8'),
+  })
+  .strict();
+
+export const solveOptionsSchema = {
+  modes: z.array(modeSchema).min(1).max(4).optional().describe('Only consider these modes (still only those the devices allow)'),
+  strict: z.boolean().default(false).describe('Braking beyond what machines and battery absorb is infeasible instead of using friction brakes'),
+};
+
+const machineStateSchema = z.object({
+  speedRpm: z.number(),
+  torqueNm: z.number(),
+  electricalW: z.number().describe('DC electrical power, W (motoring > 0)'),
+  lossW: z.number(),
+  efficiency: z.number().nullable(),
+});
+
+export const modeSettingSchema = z.object({
+  mode: modeSchema,
+  sun: machineStateSchema,
+  ring: machineStateSchema,
+  meshLossW: z.number(),
+  finalDriveLossW: z.number(),
+  deviceW: z.number(),
+  auxiliaryW: z.number(),
+  batteryW: z.number().describe('Battery power, W (discharge > 0)'),
+  systemEfficiency: z.number().nullable(),
+  binding: z.array(z.string()).describe('Limits active at this setting'),
+  electricWheelTorqueNm: z.number(),
+  frictionBrakeNm: z.number().describe('Friction-brake share of the request, N·m (magnitude)'),
+});
+
+export const pointResultSchema = modeSettingSchema.partial().extend({
+  wheelSpeedRpm: z.number(),
+  wheelTorqueNm: z.number(),
+  feasible: z.boolean(),
+  reason: z.enum(['above-max-speed', 'above-motoring-limit', 'above-braking-limit', 'battery-limit', 'no-mode-available']).optional(),
+  maxMotoringWheelNm: z.number().optional(),
+  maxBrakingWheelNm: z.number().optional(),
+  alternatives: z.array(modeSettingSchema),
+});

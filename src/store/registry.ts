@@ -1,0 +1,282 @@
+/**
+ * The documents the service knows: machine maps and drivetrains, from MAPS_DIR (shipped,
+ * read-only) and DATA_DIR (uploaded, persisted). A document in DATA_DIR overrides one of the
+ * same name in MAPS_DIR. Every write is validated and built in memory first, then written
+ * atomically, then swapped in — a failed write leaves the old document untouched.
+ */
+import { promises as fs } from 'node:fs';
+import path from 'node:path';
+import { loadMachine, parseMachineDoc, type LoadedMachine } from '../machine/load.js';
+import { parseMachineCsv } from '../machine/csv.js';
+import type { MachineDoc } from '../machine/schema.js';
+import { ModelError } from '../problem.js';
+import { buildDrivetrain, drivetrainSchema, type Drivetrain, type DrivetrainDoc } from '../solver/drivetrain.js';
+import { documentPath, removeFileDurable, removeStaleTemps, writeFileAtomic } from './files.js';
+import { contentHash } from './hash.js';
+
+export type Origin = 'maps' | 'data';
+
+export interface MachineEntry extends LoadedMachine {
+  name: string;
+  origin: Origin;
+  hash: string;
+  /** A MAPS_DIR document hidden by this DATA_DIR one, restored when this one is deleted. */
+  shadowed?: MachineEntry;
+}
+
+export interface DrivetrainEntry {
+  name: string;
+  doc: DrivetrainDoc;
+  origin: Origin;
+  hash: string;
+  shadowed?: DrivetrainEntry;
+}
+
+export interface LoadProblem {
+  file: string;
+  code: string;
+  message: string;
+  path?: string;
+}
+
+export class Registry {
+  private readonly machines = new Map<string, MachineEntry>();
+  private readonly drivetrains = new Map<string, DrivetrainEntry>();
+  private readonly built = new Map<string, { hash: string; dt: Drivetrain }>();
+  private writeChain: Promise<unknown> = Promise.resolve();
+  ready = false;
+  problems: LoadProblem[] = [];
+
+  constructor(private readonly dirs: { mapsDir: string; dataDir: string }) {}
+
+  private get machineDir(): string {
+    return path.join(this.dirs.dataDir, 'machines');
+  }
+  private get drivetrainDir(): string {
+    return path.join(this.dirs.dataDir, 'drivetrains');
+  }
+
+  /** Loads MAPS_DIR then DATA_DIR. Bad files are skipped and listed in `problems`. */
+  async load(): Promise<void> {
+    this.problems = [];
+    const pendingDrivetrains: Array<{ file: string; name: string; origin: Origin; value: unknown }> = [];
+    const visit = async (dir: string, origin: Origin, only?: 'machine' | 'drivetrain') => {
+      let entries: string[];
+      try {
+        entries = (await fs.readdir(dir)).sort();
+      } catch {
+        return;
+      }
+      for (const entry of entries) {
+        const file = path.join(dir, entry);
+        const m = /^([a-z0-9][a-z0-9-]{0,63})(\.grid\.csv|\.points\.csv|\.json)$/.exec(entry);
+        if (!m) continue;
+        const name = m[1]!;
+        try {
+          const text = await fs.readFile(file, 'utf8');
+          if (m[2] !== '.json') {
+            if (only === 'drivetrain') continue;
+            const doc = parseMachineDoc(parseMachineCsv(text, m[2] === '.grid.csv' ? 'grid' : 'points'));
+            this.installMachine(name, doc, origin);
+            continue;
+          }
+          const value: unknown = JSON.parse(text);
+          const isDrivetrain = typeof value === 'object' && value !== null && 'sunMachine' in value;
+          if (only === 'machine' || (!only && !isDrivetrain)) {
+            this.installMachine(name, parseMachineDoc(value), origin);
+          } else {
+            pendingDrivetrains.push({ file, name, origin, value });
+          }
+        } catch (err) {
+          this.problems.push(problemOf(file, err));
+        }
+      }
+    };
+    await removeStaleTemps(this.machineDir);
+    await removeStaleTemps(this.drivetrainDir);
+    await visit(this.dirs.mapsDir, 'maps');
+    await visit(this.machineDir, 'data', 'machine');
+    await visit(this.drivetrainDir, 'data', 'drivetrain');
+    for (const p of pendingDrivetrains) {
+      try {
+        this.installDrivetrain(p.name, parseDrivetrainDoc(p.value), p.origin);
+      } catch (err) {
+        this.problems.push(problemOf(p.file, err));
+      }
+    }
+    this.ready = true;
+  }
+
+  private installMachine(name: string, doc: MachineDoc, origin: Origin): MachineEntry {
+    const loaded = loadMachine(name, doc);
+    const prev = this.machines.get(name);
+    const entry: MachineEntry = { ...loaded, name, origin, hash: contentHash(doc) };
+    if (origin === 'data' && prev) entry.shadowed = prev.origin === 'maps' ? prev : prev.shadowed;
+    this.machines.set(name, entry);
+    return entry;
+  }
+
+  private installDrivetrain(name: string, doc: DrivetrainDoc, origin: Origin): DrivetrainEntry {
+    const prev = this.drivetrains.get(name);
+    const entry: DrivetrainEntry = { name, doc, origin, hash: contentHash(doc) };
+    // Built now so a drivetrain that names a missing machine or breaks a rule is refused here.
+    buildDrivetrain(name, doc, (n) => this.machines.get(n)?.map);
+    if (origin === 'data' && prev) entry.shadowed = prev.origin === 'maps' ? prev : prev.shadowed;
+    this.drivetrains.set(name, entry);
+    return entry;
+  }
+
+  private serialized<T>(fn: () => Promise<T>): Promise<T> {
+    const next = this.writeChain.then(fn, fn);
+    this.writeChain = next.catch(() => undefined);
+    return next;
+  }
+
+  /** Drops built drivetrains that use a machine (their content hash changes anyway). */
+  private forgetBuiltUsing(machine: string): void {
+    for (const [name] of this.built) {
+      const d = this.drivetrains.get(name);
+      if (!d || d.doc.sunMachine === machine || d.doc.ringMachine === machine) this.built.delete(name);
+    }
+  }
+
+  listMachines(): MachineEntry[] {
+    return [...this.machines.values()].sort((a, b) => a.name.localeCompare(b.name));
+  }
+
+  getMachine(name: string): MachineEntry | undefined {
+    return this.machines.get(name);
+  }
+
+  /** Validates, builds, writes atomically, then swaps in. Returns whether it was created. */
+  putMachine(name: string, value: unknown): Promise<{ created: boolean; entry: MachineEntry }> {
+    return this.serialized(async () => {
+      const doc = parseMachineDoc(value);
+      const loaded = loadMachine(name, doc);
+      // Drivetrains using this machine must still build with the new map.
+      for (const d of this.drivetrains.values()) {
+        if (d.doc.sunMachine !== name && d.doc.ringMachine !== name) continue;
+        buildDrivetrain(d.name, d.doc, (n) => (n === name ? loaded.map : this.machines.get(n)?.map));
+      }
+      await writeFileAtomic(documentPath(this.machineDir, name), JSON.stringify(doc, null, 1) + '\n');
+      const created = !this.machines.has(name);
+      const prev = this.machines.get(name);
+      const entry: MachineEntry = { ...loaded, name, origin: 'data', hash: contentHash(doc) };
+      if (prev) {
+        const shadow = prev.origin === 'maps' ? prev : prev.shadowed;
+        if (shadow) entry.shadowed = shadow;
+      }
+      this.machines.set(name, entry);
+      this.forgetBuiltUsing(name);
+      return { created, entry };
+    });
+  }
+
+  deleteMachine(name: string): Promise<void> {
+    return this.serialized(async () => {
+      const entry = this.machines.get(name);
+      if (!entry) throw new ModelError('not-found', `no machine named "${name}"`);
+      if (entry.origin === 'maps') {
+        throw new ApiLikeError('read-only', `machine "${name}" comes from MAPS_DIR; remove its file there to delete it`);
+      }
+      const users = [...this.drivetrains.values()].filter((d) => d.doc.sunMachine === name || d.doc.ringMachine === name);
+      if (users.length > 0 && !entry.shadowed) {
+        throw new ApiLikeError('in-use', `machine "${name}" is used by drivetrain(s) ${users.map((u) => `"${u.name}"`).join(', ')}; delete those first`);
+      }
+      await removeFileDurable(documentPath(this.machineDir, name));
+      if (entry.shadowed) this.machines.set(name, entry.shadowed);
+      else this.machines.delete(name);
+      this.forgetBuiltUsing(name);
+    });
+  }
+
+  listDrivetrains(): DrivetrainEntry[] {
+    return [...this.drivetrains.values()].sort((a, b) => a.name.localeCompare(b.name));
+  }
+
+  getDrivetrainEntry(name: string): DrivetrainEntry | undefined {
+    return this.drivetrains.get(name);
+  }
+
+  /** Content hash of a drivetrain together with the machines it uses. */
+  drivetrainContentHash(entry: { doc: DrivetrainDoc; hash: string }): string {
+    return contentHash(entry.hash, this.machines.get(entry.doc.sunMachine)?.hash ?? '', this.machines.get(entry.doc.ringMachine)?.hash ?? '');
+  }
+
+  /** The built drivetrain (cached until a machine or the drivetrain changes). */
+  getDrivetrain(name: string): Drivetrain | undefined {
+    const entry = this.drivetrains.get(name);
+    if (!entry) return undefined;
+    const hash = this.drivetrainContentHash(entry);
+    const hit = this.built.get(name);
+    if (hit && hit.hash === hash) return hit.dt;
+    const dt = buildDrivetrain(name, entry.doc, (n) => this.machines.get(n)?.map);
+    this.built.set(name, { hash, dt });
+    return dt;
+  }
+
+  /** Builds a drivetrain sent inline (machines by name); not stored. */
+  buildInline(value: unknown): { dt: Drivetrain; doc: DrivetrainDoc; hash: string } {
+    const doc = parseDrivetrainDoc(value, 'drivetrain');
+    const hash = this.drivetrainContentHash({ doc, hash: contentHash(doc) });
+    return { dt: buildDrivetrain('inline', doc, (n) => this.machines.get(n)?.map), doc, hash };
+  }
+
+  putDrivetrain(name: string, value: unknown): Promise<{ created: boolean; entry: DrivetrainEntry }> {
+    return this.serialized(async () => {
+      const doc = parseDrivetrainDoc(value);
+      buildDrivetrain(name, doc, (n) => this.machines.get(n)?.map);
+      await writeFileAtomic(documentPath(this.drivetrainDir, name), JSON.stringify(doc, null, 1) + '\n');
+      const prev = this.drivetrains.get(name);
+      const entry: DrivetrainEntry = { name, doc, origin: 'data', hash: contentHash(doc) };
+      if (prev) {
+        const shadow = prev.origin === 'maps' ? prev : prev.shadowed;
+        if (shadow) entry.shadowed = shadow;
+      }
+      this.drivetrains.set(name, entry);
+      this.built.delete(name);
+      return { created: !prev, entry };
+    });
+  }
+
+  deleteDrivetrain(name: string): Promise<void> {
+    return this.serialized(async () => {
+      const entry = this.drivetrains.get(name);
+      if (!entry) throw new ModelError('not-found', `no drivetrain named "${name}"`);
+      if (entry.origin === 'maps') {
+        throw new ApiLikeError('read-only', `drivetrain "${name}" comes from MAPS_DIR; remove its file there to delete it`);
+      }
+      await removeFileDurable(documentPath(this.drivetrainDir, name));
+      if (entry.shadowed) this.drivetrains.set(name, entry.shadowed);
+      else this.drivetrains.delete(name);
+      this.built.delete(name);
+    });
+  }
+}
+
+/** Errors of the store that are not model problems (mapped by the API's error handler). */
+export class ApiLikeError extends Error {
+  constructor(
+    readonly code: 'read-only' | 'in-use',
+    message: string,
+  ) {
+    super(message);
+  }
+}
+
+export function parseDrivetrainDoc(value: unknown, base?: string): DrivetrainDoc {
+  const r = drivetrainSchema.safeParse(value);
+  if (!r.success) {
+    const issue = r.error.issues[0]!;
+    const p = [...(base ? [base] : []), ...issue.path.map(String)];
+    const pathStr = p.map((s) => (/^\d+$/.test(s) ? `[${s}]` : `.${s}`)).join('').replace(/^\./, '');
+    throw new ModelError('drivetrain-invalid', issue.message, pathStr || undefined);
+  }
+  return r.data;
+}
+
+function problemOf(file: string, err: unknown): LoadProblem {
+  if (err instanceof ModelError) return { file, code: err.code, message: err.message, ...(err.path ? { path: err.path } : {}) };
+  if (err instanceof SyntaxError) return { file, code: 'invalid-json', message: err.message };
+  return { file, code: 'internal', message: err instanceof Error ? err.message : String(err) };
+}
