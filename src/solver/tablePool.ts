@@ -1,0 +1,102 @@
+/**
+ * Large tables on a worker-thread pool (piscina). The speed axis is cut into blocks of rows;
+ * each worker rebuilds the drivetrain from its document and machine maps (cached by key) and
+ * solves its rows; the blocks are joined and the margin applied here exactly as in
+ * {@link buildTable}, so the result is the same table.
+ *
+ * The worker script sits next to this file: `tableWorker.js` when compiled, else
+ * `tableWorker.ts`, which is loaded through tsx's loader (`--import <tsx>`) in each worker.
+ */
+import { existsSync } from 'node:fs';
+import { createRequire } from 'node:module';
+import { availableParallelism } from 'node:os';
+import { randomUUID } from 'node:crypto';
+import { fileURLToPath, pathToFileURL } from 'node:url';
+import { Piscina } from 'piscina';
+import type { Drivetrain } from './drivetrain.js';
+import { assembleTable, rowJob, type RowBlock, type TableOptions } from './table.js';
+import { resolveTableSpec, type TableSpecInput } from './tableSpec.js';
+import type { LookupTable } from './tableResult.js';
+import type { RowTask } from './tableWorker.js';
+
+/** Where the worker script is and what the worker threads need to load it. */
+export function workerScript(): { filename: string; execArgv: string[] } {
+  const js = new URL('./tableWorker.js', import.meta.url);
+  if (existsSync(fileURLToPath(js))) return { filename: js.href, execArgv: [] };
+  const ts = new URL('./tableWorker.ts', import.meta.url);
+  if (!existsSync(fileURLToPath(ts))) throw new Error(`table worker script not found next to ${fileURLToPath(import.meta.url)}`);
+  const tsx = pathToFileURL(createRequire(import.meta.url).resolve('tsx')).href;
+  return { filename: ts.href, execArgv: ['--import', tsx] };
+}
+
+export interface TablePoolOptions {
+  /** Worker threads (default: available parallelism). */
+  threads?: number;
+  /** Idle time before a worker exits, ms (default 30 s). */
+  idleTimeoutMs?: number;
+}
+
+/** A pool of table workers; share one per process and close it on shutdown. */
+export class TablePool {
+  readonly threads: number;
+  private readonly pool: Piscina<RowTask, RowBlock>;
+
+  constructor(options: TablePoolOptions = {}) {
+    this.threads = Math.max(1, Math.floor(options.threads ?? availableParallelism()));
+    const script = workerScript();
+    this.pool = new Piscina<RowTask, RowBlock>({
+      filename: script.filename,
+      execArgv: script.execArgv,
+      minThreads: 0,
+      maxThreads: this.threads,
+      idleTimeout: options.idleTimeoutMs ?? 30_000,
+    });
+  }
+
+  run(task: RowTask, signal?: AbortSignal): Promise<RowBlock> {
+    return this.pool.run(task, signal ? { signal } : {});
+  }
+
+  close(): Promise<void> {
+    return this.pool.close();
+  }
+}
+
+export interface PooledTableOptions extends TableOptions {
+  /** Pool to use; when absent a pool is made for this table and closed afterwards. */
+  pool?: TablePool;
+  /** Threads of the temporary pool when `pool` is absent. */
+  threads?: number;
+  /** Rows per task (default: about four tasks per thread). */
+  chunkRows?: number;
+  signal?: AbortSignal;
+}
+
+/** Builds a lookup table on worker threads; the result equals {@link buildTable}'s. */
+export async function buildTablePooled(dt: Drivetrain, spec: TableSpecInput, opts: PooledTableOptions = {}): Promise<LookupTable> {
+  const resolved = resolveTableSpec(spec, opts.maxCells);
+  const nS = resolved.speedRpm.length;
+  const nT = resolved.torqueNm.length;
+  const pool = opts.pool ?? new TablePool(opts.threads === undefined ? {} : { threads: opts.threads });
+  try {
+    const chunk = Math.max(1, Math.floor(opts.chunkRows ?? Math.ceil(nS / (pool.threads * 4))));
+    const key = opts.hash ?? `table-${randomUUID()}`;
+    let done = 0;
+    const tasks: Promise<RowBlock>[] = [];
+    for (let start = 0; start < nS; start += chunk) {
+      const end = Math.min(nS, start + chunk);
+      const task: RowTask = { key, name: dt.name, doc: dt.doc, sun: dt.sun, ring: dt.ring, job: rowJob(resolved, start, end) };
+      tasks.push(
+        pool.run(task, opts.signal).then((block) => {
+          done += (block.rowEnd - block.rowStart) * nT;
+          opts.onProgress?.(done, nS * nT);
+          return block;
+        }),
+      );
+    }
+    const blocks = await Promise.all(tasks);
+    return assembleTable(dt.name, resolved, blocks, opts.hash ?? null);
+  } finally {
+    if (!opts.pool) await pool.close();
+  }
+}
