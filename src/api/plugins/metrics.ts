@@ -1,0 +1,57 @@
+/**
+ * Prometheus metrics at /metrics (prom-client, one registry per app): request counts and
+ * latency by route, solver points answered, and table and cycle job durations.
+ */
+import type { FastifyInstance } from 'fastify';
+import fp from 'fastify-plugin';
+import { collectDefaultMetrics, Counter, Histogram, Registry } from 'prom-client';
+
+export interface Metrics {
+  registry: Registry;
+  solverPoints: Counter;
+  jobSeconds: Histogram<'kind'>;
+}
+
+export const metricsPlugin = fp(async (app: FastifyInstance) => {
+  const registry = new Registry();
+  collectDefaultMetrics({ register: registry });
+  const requests = new Counter({
+    name: 'episplit_http_requests_total',
+    help: 'HTTP requests by route, method and status',
+    labelNames: ['route', 'method', 'status'] as const,
+    registers: [registry],
+  });
+  const latency = new Histogram({
+    name: 'episplit_http_request_duration_seconds',
+    help: 'HTTP request latency by route and method',
+    labelNames: ['route', 'method'] as const,
+    buckets: [0.0005, 0.001, 0.0025, 0.005, 0.01, 0.025, 0.05, 0.1, 0.25, 0.5, 1, 2.5, 5, 10, 30],
+    registers: [registry],
+  });
+  const solverPoints = new Counter({ name: 'episplit_solver_points_total', help: 'Wheel points solved through the API', registers: [registry] });
+  const jobSeconds = new Histogram({
+    name: 'episplit_job_duration_seconds',
+    help: 'Duration of table and cycle jobs',
+    labelNames: ['kind'] as const,
+    buckets: [0.01, 0.05, 0.1, 0.5, 1, 2, 5, 10, 30, 60, 120],
+    registers: [registry],
+  });
+  app.decorate('metrics', { registry, solverPoints, jobSeconds } satisfies Metrics);
+
+  app.addHook('onResponse', async (request, reply) => {
+    const route = request.routeOptions.url ?? 'unmatched';
+    requests.inc({ route, method: request.method, status: String(reply.statusCode) });
+    latency.observe({ route, method: request.method }, reply.elapsedTime / 1000);
+  });
+
+  app.get('/metrics', { schema: { hide: true } }, async (_req, reply) => {
+    reply.type(registry.contentType);
+    return registry.metrics();
+  });
+});
+
+declare module 'fastify' {
+  interface FastifyInstance {
+    metrics: Metrics;
+  }
+}
