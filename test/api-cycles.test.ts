@@ -1,24 +1,15 @@
 import request from 'supertest';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { startServer, tempDirs, type TestServer } from './support/server.js';
+import { describe, expect, it } from 'vitest';
+import { useTestServer } from './support/server.js';
 
 // An invented light delivery van for our own demo scenario.
 const van = { massKg: 2600, rotatingMassFactor: 0.05, rollingResistance: 0.011, dragAreaM2: 1.9, auxiliaryW: 400 };
 
 describe('drive cycles over HTTP', () => {
-  let dirs: ReturnType<typeof tempDirs>;
-  let srv: TestServer;
-  beforeAll(async () => {
-    dirs = tempDirs();
-    srv = await startServer(dirs);
-  });
-  afterAll(async () => {
-    await srv.close();
-    dirs.cleanup();
-  });
+  const ctx = useTestServer();
 
   it('lists the built-in cycles', async () => {
-    const r = await request(srv.url).get('/v1/cycles').expect(200);
+    const r = await request(ctx.srv.url).get('/v1/cycles').expect(200);
     const nedc = r.body.cycles.find((c: { id: string }) => c.id === 'nedc');
     // NEDC: 1180 s, 120 km/h top speed (UNECE Regulation No. 83, Annex 4).
     expect(nedc.durationS).toBe(1180);
@@ -26,7 +17,7 @@ describe('drive cycles over HTTP', () => {
   });
 
   it('runs the NEDC on the demo van with comparison and bound; energy balance closes', async () => {
-    const r = await request(srv.url)
+    const r = await request(ctx.srv.url)
       .post('/v1/drivetrains/van-axle/cycles')
       .send({ vehicle: van, cycle: { builtin: 'nedc' }, compare: true, switchCostsWh: [0, 0.5], usableBatteryWh: 60_000 })
       .expect(200);
@@ -48,28 +39,28 @@ describe('drive cycles over HTTP', () => {
   it('accepts a cycle as CSV and as JSON with the same result', async () => {
     const timeS = [0, 10, 20, 30, 40];
     const speedKph = [0, 30, 50, 20, 0];
-    const json = await request(srv.url).post('/v1/drivetrains/van-axle/cycles').send({ vehicle: van, cycle: { timeS, speedKph } }).expect(200);
+    const json = await request(ctx.srv.url).post('/v1/drivetrains/van-axle/cycles').send({ vehicle: van, cycle: { timeS, speedKph } }).expect(200);
     const csv = ['timeS,speedKph', ...timeS.map((t, i) => `${t},${speedKph[i]}`)].join('\n');
-    const fromCsv = await request(srv.url).post('/v1/drivetrains/van-axle/cycles').send({ vehicle: van, cycle: { csv } }).expect(200);
+    const fromCsv = await request(ctx.srv.url).post('/v1/drivetrains/van-axle/cycles').send({ vehicle: van, cycle: { csv } }).expect(200);
     expect(fromCsv.body.result.batteryWh).toBe(json.body.result.batteryWh);
   });
 
   it('refuses bad vehicles and cycles with their codes and paths', async () => {
-    const v = await request(srv.url).post('/v1/drivetrains/van-axle/cycles').send({ vehicle: { ...van, massKg: -1 }, cycle: { builtin: 'nedc' } }).expect(422);
+    const v = await request(ctx.srv.url).post('/v1/drivetrains/van-axle/cycles').send({ vehicle: { ...van, massKg: -1 }, cycle: { builtin: 'nedc' } }).expect(422);
     expect(v.body.error.code).toBe('vehicle-invalid');
     expect(v.body.error.path).toBe('vehicle.massKg');
-    const c = await request(srv.url)
+    const c = await request(ctx.srv.url)
       .post('/v1/drivetrains/van-axle/cycles')
       .send({ vehicle: van, cycle: { timeS: [0, 10, 5], speedKph: [0, 10, 20] } })
       .expect(422);
     expect(c.body.error.code).toBe('cycle-invalid');
     expect(c.body.error.path).toBe('cycle.timeS[2]');
-    const b = await request(srv.url).post('/v1/drivetrains/van-axle/cycles').send({ vehicle: van, cycle: { builtin: 'nope' } }).expect(422);
+    const b = await request(ctx.srv.url).post('/v1/drivetrains/van-axle/cycles').send({ vehicle: van, cycle: { builtin: 'nope' } }).expect(422);
     expect(b.body.error.code).toBe('cycle-invalid');
   });
 
   it('draws a cycle run as SVG', async () => {
-    const r = await fetch(`${srv.url}/v1/drivetrains/van-axle/cycles/plot.svg`, {
+    const r = await fetch(`${ctx.srv.url}/v1/drivetrains/van-axle/cycles/plot.svg`, {
       method: 'POST',
       headers: { 'content-type': 'application/json' },
       body: JSON.stringify({ vehicle: van, cycle: { builtin: 'demo-delivery' } }),

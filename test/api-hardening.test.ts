@@ -1,51 +1,33 @@
 import request from 'supertest';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import { createJobLimiter } from '../src/api/plugins/jobs.js';
-import { startServer, tempDirs, type TestServer } from './support/server.js';
+import { useTestServer } from './support/server.js';
 
 describe('bearer-token auth', () => {
-  let dirs: ReturnType<typeof tempDirs>;
-  let srv: TestServer;
-  beforeAll(async () => {
-    dirs = tempDirs();
-    srv = await startServer(dirs, { apiToken: 's3cret-token' });
-  });
-  afterAll(async () => {
-    await srv.close();
-    dirs.cleanup();
-  });
+  const ctx = useTestServer({ apiToken: 's3cret-token' });
 
   it('guards every /v1 route and leaves /health open', async () => {
-    await request(srv.url).get('/health').expect(200);
-    const none = await request(srv.url).get('/v1/machines').expect(401);
+    await request(ctx.srv.url).get('/health').expect(200);
+    const none = await request(ctx.srv.url).get('/v1/machines').expect(401);
     expect(none.body.error.code).toBe('unauthorized');
     expect(none.headers['www-authenticate']).toBe('Bearer');
-    const wrong = await request(srv.url).get('/v1/machines').set('authorization', 'Bearer nope').expect(401);
+    const wrong = await request(ctx.srv.url).get('/v1/machines').set('authorization', 'Bearer nope').expect(401);
     expect(wrong.body.error.code).toBe('unauthorized');
-    await request(srv.url).get('/v1/machines').set('authorization', 'Bearer s3cret-token').expect(200);
-    await request(srv.url).put('/v1/machines/x').send({}).expect(401);
+    await request(ctx.srv.url).get('/v1/machines').set('authorization', 'Bearer s3cret-token').expect(200);
+    await request(ctx.srv.url).put('/v1/machines/x').send({}).expect(401);
   });
 });
 
 describe('metrics and limits', () => {
-  let dirs: ReturnType<typeof tempDirs>;
-  let srv: TestServer;
-  beforeAll(async () => {
-    dirs = tempDirs();
-    srv = await startServer(dirs);
-  });
-  afterAll(async () => {
-    await srv.close();
-    dirs.cleanup();
-  });
+  const ctx = useTestServer();
 
   it('exposes Prometheus metrics with request counts by route and solver points', async () => {
-    await request(srv.url).get('/v1/machines').expect(200);
-    await request(srv.url)
+    await request(ctx.srv.url).get('/v1/machines').expect(200);
+    await request(ctx.srv.url)
       .post('/v1/drivetrains/van-axle/operating-points')
       .send({ points: [{ wheelSpeedRpm: 100, wheelTorqueNm: 100 }, { wheelSpeedRpm: 200, wheelTorqueNm: 100 }] })
       .expect(200);
-    const m = await request(srv.url).get('/metrics').expect(200);
+    const m = await request(ctx.srv.url).get('/metrics').expect(200);
     expect(m.text).toMatch(/episplit_http_requests_total\{route="\/v1\/machines",method="GET",status="200"\} 1/);
     expect(m.text).toMatch(/episplit_solver_points_total 2/);
     expect(m.text).toMatch(/episplit_http_request_duration_seconds_bucket/);
@@ -62,14 +44,14 @@ describe('metrics and limits', () => {
   });
 
   it('unknown routes get the catalogue body', async () => {
-    const r = await request(srv.url).get('/v2/nothing').expect(404);
+    const r = await request(ctx.srv.url).get('/v2/nothing').expect(404);
     expect(r.body.error.code).toBe('not-found');
   });
 
   it('serves the OpenAPI document and the docs page', async () => {
-    const r = await request(srv.url).get('/openapi.json').expect(200);
+    const r = await request(ctx.srv.url).get('/openapi.json').expect(200);
     expect(r.body.openapi).toBe('3.1.0');
     expect(Object.keys(r.body.paths)).toContain('/v1/drivetrains/{name}/operating-points');
-    await request(srv.url).get('/docs/').expect(200);
+    await request(ctx.srv.url).get('/docs/').expect(200);
   });
 });

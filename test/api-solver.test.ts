@@ -1,22 +1,13 @@
 import request from 'supertest';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import { solvePoint } from '../src/solver/point.js';
-import { startServer, tempDirs, type TestServer } from './support/server.js';
+import { useTestServer } from './support/server.js';
 
 describe('drivetrains and operating points over HTTP', () => {
-  let dirs: ReturnType<typeof tempDirs>;
-  let srv: TestServer;
-  beforeAll(async () => {
-    dirs = tempDirs();
-    srv = await startServer(dirs, { maxBatchPoints: 150_000 });
-  });
-  afterAll(async () => {
-    await srv.close();
-    dirs.cleanup();
-  });
+  const ctx = useTestServer({ maxBatchPoints: 150_000 });
 
   it('returns the demo drivetrain with derived facts', async () => {
-    const r = await request(srv.url).get('/v1/drivetrains/van-axle').expect(200);
+    const r = await request(ctx.srv.url).get('/v1/drivetrains/van-axle').expect(200);
     // k = Zr/Zs and Zp = (Zr − Zs)/2 (planetary geometry, gear design handbooks).
     expect(r.body.derived.k).toBeCloseTo(78 / 30, 12);
     expect(r.body.derived.planetTeeth).toBe(24);
@@ -27,32 +18,32 @@ describe('drivetrains and operating points over HTTP', () => {
   });
 
   it('refuses impossible tooth counts and unknown machines with their codes', async () => {
-    const base = (await request(srv.url).get('/v1/drivetrains/van-axle').expect(200)).body.document;
-    const odd = await request(srv.url).put('/v1/drivetrains/odd').send({ ...base, gearset: { ...base.gearset, ringTeeth: 79 } }).expect(422);
+    const base = (await request(ctx.srv.url).get('/v1/drivetrains/van-axle').expect(200)).body.document;
+    const odd = await request(ctx.srv.url).put('/v1/drivetrains/odd').send({ ...base, gearset: { ...base.gearset, ringTeeth: 79 } }).expect(422);
     expect(odd.body.error.code).toBe('gearset-invalid');
     expect(odd.body.error.path).toMatch(/^gearset\./);
-    const unknown = await request(srv.url).put('/v1/drivetrains/nom').send({ ...base, sunMachine: 'no-such-machine' }).expect(422);
+    const unknown = await request(ctx.srv.url).put('/v1/drivetrains/nom').send({ ...base, sunMachine: 'no-such-machine' }).expect(422);
     expect(unknown.body.error.code).toBe('unknown-machine');
     expect(unknown.body.error.path).toBe('sunMachine');
-    const bad = await request(srv.url).put('/v1/drivetrains/bad').send({ ...base, wheelRadiusM: -1 }).expect(422);
+    const bad = await request(ctx.srv.url).put('/v1/drivetrains/bad').send({ ...base, wheelRadiusM: -1 }).expect(422);
     expect(bad.body.error.code).toBe('drivetrain-invalid');
     expect(bad.body.error.path).toBe('wheelRadiusM');
-    await request(srv.url).get('/v1/drivetrains/odd').expect(404);
+    await request(ctx.srv.url).get('/v1/drivetrains/odd').expect(404);
   });
 
   it('answers one point exactly as the in-process solver', async () => {
-    const r = await request(srv.url)
+    const r = await request(ctx.srv.url)
       .post('/v1/drivetrains/van-axle/operating-points')
       .send({ points: [{ wheelSpeedRpm: 400, wheelTorqueNm: 600 }] })
       .expect(200);
-    const dt = srv.app.registry.getDrivetrain('van-axle')!;
+    const dt = ctx.srv.app.registry.getDrivetrain('van-axle')!;
     expect(r.body.results).toEqual([JSON.parse(JSON.stringify(solvePoint(dt, 400, 600)))]);
     expect(r.body.results[0].feasible).toBe(true);
   });
 
   it('answers 100 000 points in order', async () => {
     const points = Array.from({ length: 100_000 }, (_, i) => ({ wheelSpeedRpm: (i % 1000) * 1.5, wheelTorqueNm: ((i * 7919) % 4000) - 2000 }));
-    const r = await request(srv.url).post('/v1/drivetrains/van-axle/operating-points').send({ points }).expect(200);
+    const r = await request(ctx.srv.url).post('/v1/drivetrains/van-axle/operating-points').send({ points }).expect(200);
     expect(r.body.results).toHaveLength(100_000);
     for (const i of [0, 1, 4242, 99_999]) {
       expect(r.body.results[i].wheelSpeedRpm).toBe(points[i]!.wheelSpeedRpm);
@@ -62,17 +53,17 @@ describe('drivetrains and operating points over HTTP', () => {
 
   it('refuses batches above the configured maximum, and malformed points', async () => {
     const points = Array.from({ length: 150_001 }, () => ({ wheelSpeedRpm: 1, wheelTorqueNm: 1 }));
-    const big = await request(srv.url).post('/v1/drivetrains/van-axle/operating-points').send({ points }).expect(413);
+    const big = await request(ctx.srv.url).post('/v1/drivetrains/van-axle/operating-points').send({ points }).expect(413);
     expect(big.body.error.code).toBe('too-large');
-    const bad = await request(srv.url)
+    const bad = await request(ctx.srv.url)
       .post('/v1/drivetrains/van-axle/operating-points')
       .send({ points: [{ wheelSpeedRpm: 'fast', wheelTorqueNm: 1 }] })
       .expect(400);
     expect(bad.body.error.code).toBe('invalid-request');
     expect(bad.body.error.path).toBe('points[0].wheelSpeedRpm');
-    const none = await request(srv.url).post('/v1/drivetrains/nothing/operating-points').send({ points: [{ wheelSpeedRpm: 1, wheelTorqueNm: 1 }] }).expect(404);
+    const none = await request(ctx.srv.url).post('/v1/drivetrains/nothing/operating-points').send({ points: [{ wheelSpeedRpm: 1, wheelTorqueNm: 1 }] }).expect(404);
     expect(none.body.error.code).toBe('not-found');
-    const mode = await request(srv.url)
+    const mode = await request(ctx.srv.url)
       .post('/v1/drivetrains/van-axle/operating-points')
       .send({ points: [{ wheelSpeedRpm: 1, wheelTorqueNm: 1 }], modes: ['warp'] })
       .expect(400);
@@ -80,13 +71,13 @@ describe('drivetrains and operating points over HTTP', () => {
   });
 
   it('solves for a drivetrain sent inline', async () => {
-    const doc = (await request(srv.url).get('/v1/drivetrains/van-axle').expect(200)).body.document;
-    const r = await request(srv.url)
+    const doc = (await request(ctx.srv.url).get('/v1/drivetrains/van-axle').expect(200)).body.document;
+    const r = await request(ctx.srv.url)
       .post('/v1/operating-points')
       .send({ drivetrain: { ...doc, devices: {} }, points: [{ wheelSpeedRpm: 400, wheelTorqueNm: 600 }] })
       .expect(200);
     expect(r.body.results[0].mode).toBe('split');
-    const bad = await request(srv.url)
+    const bad = await request(ctx.srv.url)
       .post('/v1/operating-points')
       .send({ drivetrain: { ...doc, gearset: { ...doc.gearset, planets: 40 } }, points: [{ wheelSpeedRpm: 1, wheelTorqueNm: 1 }] })
       .expect(422);
@@ -94,13 +85,13 @@ describe('drivetrains and operating points over HTTP', () => {
   });
 
   it('a drivetrain can be stored and survives deleting its machine only after it is gone', async () => {
-    const base = (await request(srv.url).get('/v1/drivetrains/van-axle').expect(200)).body.document;
-    const grid = (await request(srv.url).get('/v1/machines/sun-machine?document=true').expect(200)).body.document;
-    await request(srv.url).put('/v1/machines/my-sun').send(grid).expect(201);
-    await request(srv.url).put('/v1/drivetrains/my-axle').send({ ...base, sunMachine: 'my-sun' }).expect(201);
-    const inUse = await request(srv.url).delete('/v1/machines/my-sun').expect(409);
+    const base = (await request(ctx.srv.url).get('/v1/drivetrains/van-axle').expect(200)).body.document;
+    const grid = (await request(ctx.srv.url).get('/v1/machines/sun-machine?document=true').expect(200)).body.document;
+    await request(ctx.srv.url).put('/v1/machines/my-sun').send(grid).expect(201);
+    await request(ctx.srv.url).put('/v1/drivetrains/my-axle').send({ ...base, sunMachine: 'my-sun' }).expect(201);
+    const inUse = await request(ctx.srv.url).delete('/v1/machines/my-sun').expect(409);
     expect(inUse.body.error.code).toBe('in-use');
-    await request(srv.url).delete('/v1/drivetrains/my-axle').expect(204);
-    await request(srv.url).delete('/v1/machines/my-sun').expect(204);
+    await request(ctx.srv.url).delete('/v1/drivetrains/my-axle').expect(204);
+    await request(ctx.srv.url).delete('/v1/machines/my-sun').expect(204);
   });
 });

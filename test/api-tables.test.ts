@@ -1,30 +1,21 @@
 import request from 'supertest';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import { parseTableCsv } from '../src/report/tableCsv.js';
 import { solvePoint } from '../src/solver/point.js';
-import { startServer, tempDirs, type TestServer } from './support/server.js';
+import { useTestServer } from './support/server.js';
 
 describe('tables and plots over HTTP', () => {
-  let dirs: ReturnType<typeof tempDirs>;
-  let srv: TestServer;
-  beforeAll(async () => {
-    dirs = tempDirs();
-    srv = await startServer(dirs);
-  });
-  afterAll(async () => {
-    await srv.close();
-    dirs.cleanup();
-  });
+  const ctx = useTestServer();
   const spec = { speedRpm: { from: 0, to: 1500, steps: 7 }, torqueNm: { from: -2000, to: 2000, steps: 9 } };
 
   it('CSV cells equal the single-point answers and identical requests hit the cache with an ETag', async () => {
-    const r = await request(srv.url).post('/v1/drivetrains/van-axle/tables').send({ ...spec, format: 'csv' }).expect(200);
+    const r = await request(ctx.srv.url).post('/v1/drivetrains/van-axle/tables').send({ ...spec, format: 'csv' }).expect(200);
     expect(r.headers['content-type']).toMatch(/text\/csv/);
     const etag = r.headers.etag as string;
     expect(etag).toMatch(/^"[0-9a-f]{64}"$/);
     const cells = parseTableCsv(r.text);
     expect(cells).toHaveLength(63);
-    const dt = srv.app.registry.getDrivetrain('van-axle')!;
+    const dt = ctx.srv.app.registry.getDrivetrain('van-axle')!;
     for (const c of cells) {
       const p = solvePoint(dt, c.wheelSpeedRpm, c.wheelTorqueNm);
       expect(c.feasible).toBe(p.feasible);
@@ -33,16 +24,16 @@ describe('tables and plots over HTTP', () => {
         expect(c.batteryW).toBe(p.batteryW);
       }
     }
-    const again = await request(srv.url).post('/v1/drivetrains/van-axle/tables').send({ ...spec, format: 'csv' }).expect(200);
+    const again = await request(ctx.srv.url).post('/v1/drivetrains/van-axle/tables').send({ ...spec, format: 'csv' }).expect(200);
     expect(again.text).toBe(r.text);
-    await request(srv.url).post('/v1/drivetrains/van-axle/tables').set('if-none-match', etag).send({ ...spec, format: 'csv' }).expect(304);
+    await request(ctx.srv.url).post('/v1/drivetrains/van-axle/tables').set('if-none-match', etag).send({ ...spec, format: 'csv' }).expect(304);
   });
 
   it('serves JSON and a C header with the caution and the content hash', async () => {
-    const j = await request(srv.url).post('/v1/drivetrains/van-axle/tables').send(spec).expect(200);
+    const j = await request(ctx.srv.url).post('/v1/drivetrains/van-axle/tables').send(spec).expect(200);
     expect(j.body.kind).toBe('lookup-table');
     expect(j.body.axes.speedRpm).toHaveLength(7);
-    const c = await request(srv.url).post('/v1/drivetrains/van-axle/tables').send({ ...spec, format: 'c' }).expect(200);
+    const c = await request(ctx.srv.url).post('/v1/drivetrains/van-axle/tables').send({ ...spec, format: 'c' }).expect(200);
     expect(c.text).toMatch(/static const float/);
     expect(c.text).toContain(c.headers['x-content-hash']);
     expect(c.text.replace(/\s*\n\s*\*\s*/g, ' ')).toMatch(/certifies nothing/);
@@ -50,33 +41,33 @@ describe('tables and plots over HTTP', () => {
 
   it('builds a large table on the worker pool while /health keeps answering', async () => {
     const big = { speedRpm: { from: 0, to: 1600, steps: 81 }, torqueNm: { from: -2500, to: 2500, steps: 81 }, format: 'csv' };
-    const pending = request(srv.url).post('/v1/drivetrains/van-axle/tables').send(big);
-    const health = await request(srv.url).get('/health').expect(200);
+    const pending = request(ctx.srv.url).post('/v1/drivetrains/van-axle/tables').send(big);
+    const health = await request(ctx.srv.url).get('/health').expect(200);
     expect(health.body.status).toBe('ok');
     const r = await pending.expect(200);
     expect(parseTableCsv(r.text)).toHaveLength(81 * 81);
   });
 
   it('refuses bad table requests with table-invalid and the field', async () => {
-    const desc = await request(srv.url).post('/v1/drivetrains/van-axle/tables').send({ speedRpm: [0, 10, 5], torqueNm: spec.torqueNm }).expect(422);
+    const desc = await request(ctx.srv.url).post('/v1/drivetrains/van-axle/tables').send({ speedRpm: [0, 10, 5], torqueNm: spec.torqueNm }).expect(422);
     expect(desc.body.error.code).toBe('table-invalid');
     expect(desc.body.error.path).toMatch(/^speedRpm/);
-    const fmt = await request(srv.url).post('/v1/drivetrains/van-axle/tables').send({ ...spec, format: 'xlsx' }).expect(422);
+    const fmt = await request(ctx.srv.url).post('/v1/drivetrains/van-axle/tables').send({ ...spec, format: 'xlsx' }).expect(422);
     expect(fmt.body.error.path).toBe('format');
   });
 
   it('plots the table and a machine map as SVG', async () => {
-    const t = await fetch(`${srv.url}/v1/drivetrains/van-axle/plot.svg?speedRpm=0:1500:21&torqueNm=-2000:2000:21`);
+    const t = await fetch(`${ctx.srv.url}/v1/drivetrains/van-axle/plot.svg?speedRpm=0:1500:21&torqueNm=-2000:2000:21`);
     expect(t.status).toBe(200);
     expect(t.headers.get('content-type')).toMatch(/image\/svg\+xml/);
     const svg = await t.text();
     expect(svg).toMatch(/^<\?xml/);
     expect(svg).toContain('id="envelope"');
     expect(svg).toMatch(/data-mode="split"/);
-    const m = await fetch(`${srv.url}/v1/machines/ring-machine/plot.svg`);
+    const m = await fetch(`${ctx.srv.url}/v1/machines/ring-machine/plot.svg`);
     expect(m.status).toBe(200);
     expect(await m.text()).toContain('id="envelope"');
-    const bad = await request(srv.url).get('/v1/drivetrains/van-axle/plot.svg?speedRpm=abc').expect(400);
+    const bad = await request(ctx.srv.url).get('/v1/drivetrains/van-axle/plot.svg?speedRpm=abc').expect(400);
     expect(bad.body.error.path).toBe('speedRpm');
   });
 });

@@ -3,21 +3,12 @@ import { accountedEnergyWh, runCycle } from '../src/vehicle/cycleEnergy.js';
 import { getBuiltinCycle } from '../src/vehicle/cycles.js';
 import { parseCycleCsv, parseCycleInput, parseVehicle, validateCycleTrace } from '../src/vehicle/schema.js';
 import { wheelTorqueLimits } from '../src/solver/envelope.js';
-import { ModelError } from '../src/problem.js';
 import { testDrivetrain, testVehicle } from './support/syntheticDrivetrain.js';
+import { catchModelError } from './support/modelError.js';
 
 /** 0 → 72 km/h in 10 s, 20 s at 72 km/h, 72 → 0 km/h in 10 s (samples at 0, 10, 30, 40 s). */
 const trapezoid = validateCycleTrace({ name: 'trapezoid', timeS: [0, 10, 30, 40], speedKph: [0, 72, 72, 0] });
 
-function thrown(f: () => unknown): ModelError {
-  try {
-    f();
-  } catch (e) {
-    if (e instanceof ModelError) return e;
-    throw e;
-  }
-  throw new Error('expected a ModelError');
-}
 
 describe('cycle energy on a lossless drivetrain', () => {
   const dt = testDrivetrain({ lossless: true });
@@ -150,7 +141,7 @@ describe('cycle and vehicle validation', () => {
   ];
   for (const [what, f, code, path] of cases) {
     it(`refuses ${what} with the path`, () => {
-      const e = thrown(f);
+      const e = catchModelError(f);
       expect(e.code).toBe(code);
       expect(e.path).toBe(path);
       expect(e.message.length).toBeGreaterThan(10);

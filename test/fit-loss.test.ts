@@ -1,6 +1,6 @@
 import { describe, it, expect } from 'vitest';
 import { evaluateLossPolynomial, fitLossPolynomial, lossTerms, type LossFit } from '../src/machine/fitLoss.js';
-import { ModelError } from '../src/problem.js';
+import { catchModelError } from './support/modelError.js';
 
 /** Known loss surface, W (invented): P = 200 + 0.02·ω² + 0.05·T² + 0.001·ω·T. */
 const known = (w: number, t: number) => 200 + 0.02 * w * w + 0.05 * t * t + 0.001 * w * t;
@@ -40,15 +40,6 @@ function coefficient(fit: LossFit, a: number, b: number): number {
   return fit.coefficients[k]!;
 }
 
-function fitError(fn: () => unknown): ModelError {
-  try {
-    fn();
-  } catch (e) {
-    if (e instanceof ModelError) return e;
-    throw e;
-  }
-  throw new Error('expected a ModelError');
-}
 
 describe('fitLossPolynomial', () => {
   it('builds the tensor-product and total-degree term sets', () => {
@@ -102,7 +93,7 @@ describe('fitLossPolynomial', () => {
 
   it('refuses fewer points than terms', () => {
     const s = randomSamples(5, 3, known);
-    const e = fitError(() => fitLossPolynomial(s, { speedDegree: 2, torqueDegree: 2 }));
+    const e = catchModelError(() => fitLossPolynomial(s, { speedDegree: 2, torqueDegree: 2 }));
     expect(e.code).toBe('fit-failed');
     expect(e.message).toContain('5 points cannot fit 9 terms');
     expect(e.message).toContain('lower the degree');
@@ -114,7 +105,7 @@ describe('fitLossPolynomial', () => {
     const s = randomSamples(200, 5, known);
     s.speedRadS.fill(300);
     for (let i = 0; i < 200; i++) s.lossW[i] = known(300, s.torqueNm[i]!);
-    const e = fitError(() => fitLossPolynomial(s, { speedDegree: 2, torqueDegree: 2 }));
+    const e = catchModelError(() => fitLossPolynomial(s, { speedDegree: 2, torqueDegree: 2 }));
     expect(e.code).toBe('fit-failed');
     expect(e.message).toContain('ill-conditioned');
     expect(e.message).toContain('1e+10');
@@ -129,7 +120,7 @@ describe('fitLossPolynomial', () => {
       s.torqueNm[i] = 0.2 * s.speedRadS[i]!;
       s.lossW[i] = known(s.speedRadS[i]!, s.torqueNm[i]!);
     }
-    const e = fitError(() => fitLossPolynomial(s, { speedDegree: 1, torqueDegree: 1 }));
+    const e = catchModelError(() => fitLossPolynomial(s, { speedDegree: 1, torqueDegree: 1 }));
     expect(e.code).toBe('fit-failed');
     expect(e.message).toContain('do not spread over speed and torque');
   });

@@ -13,26 +13,13 @@ import path from 'node:path';
 import fc from 'fast-check';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { ERROR_CATALOGUE } from '../src/api/errors.js';
+import { SMALL_GRID } from './support/documents.js';
 import { REPO_MAPS, startServer, tempDirs, type TestServer } from './support/server.js';
 
 // ---------------------------------------------------------------------------------------------
 // Seed documents (invented, for these checks only)
 
-const seedGrid = {
-  kind: 'grid',
-  description: 'invented fuzz seed',
-  speedRpm: [0, 2000, 4000],
-  torqueNm: [-50, 0, 50],
-  lossW: [
-    [100, 50, 100],
-    [300, 150, 300],
-    [600, 400, 600],
-  ],
-  maxTorqueNm: [50, 50, 30],
-  minTorqueNm: [-50, -50, -30],
-  maxSpeedRpm: 4000,
-  reverse: true,
-};
+const seedGrid = { ...SMALL_GRID, description: 'invented fuzz seed', reverse: true };
 
 /** Invented measured points: loss 80 W + 0.05·ω + 0.05·T² (ω rad/s), electrical = T·ω + loss. */
 function seedPointsDoc() {

@@ -4,6 +4,7 @@ import { pointsToGrid } from '../src/machine/fromPoints.js';
 import { buildMachineMap, type GridInput } from '../src/machine/map.js';
 import { gridMapSchema, pointsMapSchema } from '../src/machine/schema.js';
 import { ModelError } from '../src/problem.js';
+import { catchModelError } from './support/modelError.js';
 
 // Reference for every check here: the same invented machine written as a JSON document; a CSV in
 // long format (one row per point) must carry exactly the same data (common practice).
@@ -47,13 +48,7 @@ speedRpm,torqueNm,lossW
 `;
 
 function csvError(text: string, kind: 'grid' | 'points'): ModelError {
-  try {
-    parseMachineCsv(text, kind);
-  } catch (e) {
-    if (e instanceof ModelError) return e;
-    throw e;
-  }
-  throw new Error('expected a ModelError');
+  return catchModelError(() => parseMachineCsv(text, kind));
 }
 
 describe('parseMachineCsv (grid)', () => {

@@ -2,8 +2,8 @@ import { describe, it, expect } from 'vitest';
 import { pointsToGrid } from '../src/machine/fromPoints.js';
 import { buildMachineMap, electricalPowerAt, lossAt } from '../src/machine/map.js';
 import { pointsMapSchema, type PointsMapDoc } from '../src/machine/schema.js';
-import { ModelError } from '../src/problem.js';
 import { RAD_S_PER_RPM } from '../src/units.js';
+import { catchModelError } from './support/modelError.js';
 
 /** Invented loss surface of a machine with inverter, W (ω rad/s, T N·m); positive everywhere used. */
 const loss = (w: number, t: number) => 150 + 0.4 * w + 0.04 * t * t + 3e-4 * w * w + 2e-4 * w * t;
@@ -36,15 +36,6 @@ function doc(points: Point[], extra: Record<string, unknown> = {}): PointsMapDoc
   return pointsMapSchema.parse({ kind: 'points', points, envelope, maxSpeedRpm: 12000, grid: { speedSteps: 31, torqueSteps: 61 }, ...extra });
 }
 
-function modelError(fn: () => unknown): ModelError {
-  try {
-    fn();
-  } catch (e) {
-    if (e instanceof ModelError) return e;
-    throw e;
-  }
-  throw new Error('expected a ModelError');
-}
 
 describe('pointsToGrid', () => {
   it('builds a canonical map whose loss at the measured points matches the measurement', () => {
@@ -156,11 +147,11 @@ describe('pointsToGrid', () => {
   it('refuses efficiency at zero shaft power with the point path', () => {
     const pts = measuredPoints('electricalW');
     pts.splice(2, 0, { speedRpm: 0, torqueNm: 50, efficiency: 0.9 });
-    let e = modelError(() => pointsToGrid(doc(pts)));
+    let e = catchModelError(() => pointsToGrid(doc(pts)));
     expect(e.code).toBe('map-invalid');
     expect(e.path).toBe('points[2].efficiency');
     pts[2] = { speedRpm: 1000, torqueNm: 0, efficiency: 0.9 };
-    e = modelError(() => pointsToGrid(doc(pts)));
+    e = catchModelError(() => pointsToGrid(doc(pts)));
     expect(e.path).toBe('points[2].efficiency');
   });
 
@@ -169,7 +160,7 @@ describe('pointsToGrid', () => {
     const w = 1000 * RAD_S_PER_RPM;
     // P_mech = 100·104.72 = 10472 W; tolerance −(1 % · 10472 + 1) = −105.7 W.
     pts[7] = { speedRpm: 1000, torqueNm: 100, electricalW: 100 * w - 300 };
-    const e = modelError(() => pointsToGrid(doc(pts)));
+    const e = catchModelError(() => pointsToGrid(doc(pts)));
     expect(e.code).toBe('map-invalid');
     expect(e.path).toBe('points[7].electricalW');
     pts[7] = { speedRpm: 1000, torqueNm: 100, electricalW: 100 * w - 50 };
@@ -179,7 +170,7 @@ describe('pointsToGrid', () => {
 
   it('refuses a bad envelope with the element path', () => {
     const bad = (env: Record<string, number[]>, path: string) => {
-      const e = modelError(() => pointsToGrid(doc(measuredPoints('electricalW'), { envelope: { ...envelope, ...env } })));
+      const e = catchModelError(() => pointsToGrid(doc(measuredPoints('electricalW'), { envelope: { ...envelope, ...env } })));
       expect(e.code).toBe('map-invalid');
       expect(e.path).toBe(path);
     };
@@ -193,7 +184,7 @@ describe('pointsToGrid', () => {
 
   it('reports a fit the points cannot support as fit-failed', () => {
     const pts = measuredPoints('electricalW').filter((p) => p.speedRpm === 3000);
-    const e = modelError(() => pointsToGrid(doc(pts)));
+    const e = catchModelError(() => pointsToGrid(doc(pts)));
     expect(e.code).toBe('fit-failed');
     expect(e.path).toBe('points');
     expect(e.message).toContain('speed takes only 1 distinct value');

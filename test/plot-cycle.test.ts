@@ -1,11 +1,11 @@
 import { describe, expect, it } from 'vitest';
-import { ModelError } from '../src/problem.js';
 import { MAX_DRAWN_STEPS, plotCycle, reduceMinMax } from '../src/report/svg/plotCycle.js';
 import { runCycle } from '../src/vehicle/cycleEnergy.js';
 import { getBuiltinCycle } from '../src/vehicle/cycles.js';
 import { validateCycleTrace } from '../src/vehicle/schema.js';
 import { testDrivetrain, testVehicle } from './support/syntheticDrivetrain.js';
 import { parseXml } from './support/xmlCheck.js';
+import { catchModelError } from './support/modelError.js';
 
 /** Numbers as d3 prints tick labels: U+2212 minus, comma thousands separators. */
 function tickNumber(s: string): number {
@@ -58,15 +58,6 @@ function bandWidths(svg: string): Map<string, number[]> {
   return out;
 }
 
-function thrown(f: () => unknown): ModelError {
-  try {
-    f();
-  } catch (e) {
-    if (e instanceof ModelError) return e;
-    throw e;
-  }
-  throw new Error('expected a ModelError');
-}
 
 const dt = testDrivetrain();
 
@@ -232,7 +223,7 @@ describe('cycle plot of a long series', () => {
 describe('cycle plot request', () => {
   it('refuses a result run without the per-step series', () => {
     const r = runCycle(dt, testVehicle(), getBuiltinCycle('demo-delivery'));
-    const e = thrown(() => plotCycle(r));
+    const e = catchModelError(() => plotCycle(r));
     expect(e.code).toBe('invalid-request');
     expect(e.path).toBe('series');
     expect(e.message).toBe('the cycle plot needs the per-step series');

@@ -267,7 +267,6 @@ export function isFeasible(map: MachineMap, omega: number, torque: number): bool
 export function lossForward(map: MachineMap, w: number, torque: number): number {
   const s = map.speedRadS;
   const t = map.torqueNm;
-  const nT = map.nTorque;
   const i = upperIndex(s, w);
   const j = upperIndex(t, torque);
   let u = (w - s[i]!) / (s[i + 1]! - s[i]!);
@@ -276,6 +275,15 @@ export function lossForward(map: MachineMap, w: number, torque: number): number 
   else if (u > 1) u = 1;
   if (v < 0) v = 0;
   else if (v > 1) v = 1;
+  return lossInCell(map, i, u, j, v);
+}
+
+/**
+ * Bilinear loss (W) in speed cell i at fraction u and torque cell j at fraction v (both 0..1):
+ * the surface every loss evaluation uses, with the cells found beforehand.
+ */
+export function lossInCell(map: MachineMap, i: number, u: number, j: number, v: number): number {
+  const nT = map.nTorque;
   const L = map.lossW;
   const k = i * nT + j;
   const l00 = L[k]!;

@@ -20,6 +20,13 @@ const description = z.string().max(4000).optional().describe('Free text: what th
 const reverse = z.boolean().default(true).describe('Whether the machine may turn backwards (mirror of the forward map)');
 const speedAxis = z.array(z.number()).min(2).max(MAX_GRID_AXIS);
 const torqueAxis = z.array(z.number()).min(2).max(MAX_GRID_AXIS);
+const gridSize = z
+  .object({
+    speedSteps: z.number().int().min(2).max(MAX_GRID_AXIS).default(41).describe('Nodes on the speed axis'),
+    torqueSteps: z.number().int().min(2).max(MAX_GRID_AXIS).default(61).describe('Nodes on the torque axis'),
+  })
+  .strict()
+  .default({ speedSteps: 41, torqueSteps: 61 });
 
 export const gridMapSchema = z
   .object({
@@ -86,14 +93,7 @@ export const pointsMapSchema = z
       .strict()
       .default({ speedDegree: 3, torqueDegree: 3 })
       .describe('Loss polynomial P_loss = Σ c_ab·ω^a·τ^b'),
-    grid: z
-      .object({
-        speedSteps: z.number().int().min(2).max(MAX_GRID_AXIS).default(41),
-        torqueSteps: z.number().int().min(2).max(MAX_GRID_AXIS).default(61),
-      })
-      .strict()
-      .default({ speedSteps: 41, torqueSteps: 61 })
-      .describe('Size of the canonical grid the fitted polynomial is evaluated on'),
+    grid: gridSize.describe('Size of the canonical grid the fitted polynomial is evaluated on'),
   })
   .strict();
 
@@ -131,14 +131,7 @@ export const dqModelSchema = z
       })
       .strict()
       .default({ constantW: 0, perAmpW: 0, resistanceOhm: 0 }),
-    grid: z
-      .object({
-        speedSteps: z.number().int().min(2).max(MAX_GRID_AXIS).default(41),
-        torqueSteps: z.number().int().min(2).max(MAX_GRID_AXIS).default(61),
-      })
-      .strict()
-      .default({ speedSteps: 41, torqueSteps: 61 })
-      .describe('Size of the synthesised canonical grid'),
+    grid: gridSize.describe('Size of the synthesised canonical grid'),
     reverse,
   })
   .strict();

@@ -76,21 +76,6 @@ export function axisCell(xs: Float64Array, x: number, out: AxisCell): void {
 }
 
 /**
- * Bilinear loss (W) of `map` in speed cell (i, u) and torque cell (j, v): the same surface as
- * lossForward in src/machine/map.ts with the cells found beforehand.
- */
-export function lossInCells(map: MachineMap, i: number, u: number, j: number, v: number): number {
-  const nT = map.nTorque;
-  const L = map.lossW;
-  const k = i * nT + j;
-  const l00 = L[k]!;
-  const l01 = L[k + 1]!;
-  const l10 = L[k + nT]!;
-  const l11 = L[k + nT + 1]!;
-  return (1 - u) * ((1 - v) * l00 + v * l01) + u * ((1 - v) * l10 + v * l11);
-}
-
-/**
  * Moves cell index c on an ascending axis to the cell containing x (xs[c] <= x < xs[c+1],
  * clamped to the end cells). Amortised O(1) when successive x move steadily, as in a sorted walk.
  */

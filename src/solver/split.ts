@@ -12,8 +12,8 @@
  */
 import { sunTorqueBand } from '../gearset/planetary.js';
 import type { Drivetrain } from './drivetrain.js';
-import { axisCell, cellWeight, envelopeAt, firstAbove, lastBelow, lossInCells, moveCell } from './machineEval.js';
-import { upperIndex } from '../machine/map.js';
+import { axisCell, cellWeight, envelopeAt, firstAbove, lastBelow, moveCell } from './machineEval.js';
+import { lossInCell, upperIndex } from '../machine/map.js';
 import { bestOnPiece, PIECE } from './piece.js';
 import { solveShare } from './torqueShare.js';
 import type { Candidate } from './work.js';
@@ -109,7 +109,7 @@ function evalSplit(dt: Drivetrain, x: number, base: number, ts: number, tout: nu
   let i = (CUR.s = moveCell(sun.speedRadS, CUR.s, as));
   let u = cellWeight(sun.speedRadS, i, as);
   let tc = x < 0 ? SN : SP;
-  const ls = lossInCells(sun, i, u, tc.i, tc.u);
+  const ls = lossInCell(sun, i, u, tc.i, tc.u);
   let mx = sun.maxTorqueNm;
   let mn = sun.minTorqueNm;
   let hi = mx[i]! + u * (mx[i + 1]! - mx[i]!);
@@ -121,7 +121,7 @@ function evalSplit(dt: Drivetrain, x: number, base: number, ts: number, tout: nu
   i = CUR.r = moveCell(ring.speedRadS, CUR.r, ar);
   u = cellWeight(ring.speedRadS, i, ar);
   tc = wr < 0 ? RN : RP;
-  const lr = lossInCells(ring, i, u, tc.i, tc.u);
+  const lr = lossInCell(ring, i, u, tc.i, tc.u);
   mx = ring.maxTorqueNm;
   mn = ring.minTorqueNm;
   hi = mx[i]! + u * (mx[i + 1]! - mx[i]!);

@@ -6,8 +6,8 @@
  * P_batt is piecewise linear in T_s and the exact minimum lies at a kink, an end of the range, or
  * where a battery limit is met. Speeds rad/s, torques N·m, powers W.
  */
-import { upperIndex } from '../machine/map.js';
-import { axisCell, cellWeight, lossInCells, moveCell } from './machineEval.js';
+import { lossInCell, upperIndex } from '../machine/map.js';
+import { axisCell, cellWeight, moveCell } from './machineEval.js';
 import type { Drivetrain } from './drivetrain.js';
 import { bestOnPiece, PIECE } from './piece.js';
 import type { Candidate } from './work.js';
@@ -24,8 +24,8 @@ function evalShare(dt: Drivetrain, w: number, tout: number, ts: number, devW: nu
   const fr = w < 0 ? ts - tout : tout - ts;
   const cs = (SH.cs = moveCell(sun.torqueNm, SH.cs, fs));
   const cr = (SH.cr = moveCell(ring.torqueNm, SH.cr, fr));
-  const ls = lossInCells(sun, SH.is, SH.us, cs, cellWeight(sun.torqueNm, cs, fs));
-  const lr = lossInCells(ring, SH.ir, SH.ur, cr, cellWeight(ring.torqueNm, cr, fr));
+  const ls = lossInCell(sun, SH.is, SH.us, cs, cellWeight(sun.torqueNm, cs, fs));
+  const lr = lossInCell(ring, SH.ir, SH.ur, cr, cellWeight(ring.torqueNm, cr, fr));
   const p = tout * w + ls + lr + dt.auxW + devW;
   ev[o] = dt.work.sense * p;
   ev[o + 1] = dt.maxDischargeW - p;

@@ -3,6 +3,7 @@ import { cpSync, mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 import type { FastifyInstance } from 'fastify';
+import { afterAll, beforeAll } from 'vitest';
 import { buildApp } from '../../src/api/app.js';
 import { configFromEnv, type Config } from '../../src/config.js';
 
@@ -31,4 +32,21 @@ export async function startServer(dirs: { mapsDir: string; dataDir: string }, ov
   const addr = app.server.address();
   if (!addr || typeof addr === 'string') throw new Error('no address');
   return { app, url: `http://127.0.0.1:${addr.port}`, dirs, close: () => app.close() };
+}
+
+/**
+ * Starts a server over fresh temporary folders before the enclosing describe block's tests and
+ * stops it after; read `ctx.srv` / `ctx.dirs` inside the tests.
+ */
+export function useTestServer(overrides: Partial<Config> = {}): { srv: TestServer; dirs: ReturnType<typeof tempDirs> } {
+  const ctx = {} as { srv: TestServer; dirs: ReturnType<typeof tempDirs> };
+  beforeAll(async () => {
+    ctx.dirs = tempDirs();
+    ctx.srv = await startServer(ctx.dirs, overrides);
+  });
+  afterAll(async () => {
+    await ctx.srv.close();
+    ctx.dirs.cleanup();
+  });
+  return ctx;
 }
