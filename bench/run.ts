@@ -14,7 +14,6 @@ import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { solvePoint } from '../src/solver/point.js';
 import { buildTable } from '../src/solver/table.js';
-import { buildTablePooled, TablePool } from '../src/solver/tablePool.js';
 import { Registry } from '../src/store/registry.js';
 import { cycleWheelDemand } from '../src/vehicle/roadLoad.js';
 import { runCycle } from '../src/vehicle/cycleEnergy.js';
@@ -50,7 +49,10 @@ const s = runSolverBench(dt);
 console.log(`solver: ${Math.round(s.solvesPerSecond)} solves/s (median of ${s.runs} runs over ${s.points} points); friction-braking points ${Math.round(s.frictionSolvesPerSecond)}/s; wheel-torque limits ${Math.round(s.limitsPerSecond)}/s`);
 console.log(`solver vs dense scan (${s.scanSamples} samples): ${s.speedup.toFixed(0)}× faster; solver not worse on ${(100 * s.notWorseShare).toFixed(1)} % of ${s.scanPoints} points (scan above solver by up to ${s.maxScanExcessW.toFixed(3)} W)`);
 
-// 2. Table 201 × 201.
+// 2. Table 201 × 201. The pool is taken from the compiled build (npm run bench builds first), as
+// the service runs it: worker threads under the TypeScript loader are markedly slower.
+const distPool = new URL('../dist/solver/tablePool.js', import.meta.url).href;
+const { buildTablePooled, TablePool } = (await import(distPool)) as typeof import('../src/solver/tablePool.js');
 const spec = { speedRpm: { from: 0, to: 1700, steps: 201 }, torqueNm: { from: -2500, to: 2500, steps: 201 } };
 buildTable(dt, { speedRpm: { from: 0, to: 1700, steps: 21 }, torqueNm: spec.torqueNm }); // warm-up
 const inProc = median([0, 1, 2].map(() => time(() => buildTable(dt, spec))));

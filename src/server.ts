@@ -2,6 +2,7 @@
  * Process entry: configuration from the environment, the app, listening, and a graceful
  * shutdown on SIGTERM/SIGINT that stops accepting connections and lets in-flight requests finish.
  */
+import { pathToFileURL } from 'node:url';
 import { buildApp } from './api/app.js';
 import { configFromEnv } from './config.js';
 
@@ -32,7 +33,7 @@ export async function startServer(): Promise<void> {
   await app.listen({ port: config.port, host: config.host });
 }
 
-const isMain = process.argv[1] && import.meta.url === new URL(`file://${process.argv[1]}`).href;
+const isMain = process.argv[1] !== undefined && import.meta.url === pathToFileURL(process.argv[1]).href;
 if (isMain) {
   startServer().catch((err: unknown) => {
     console.error(err);

@@ -9,11 +9,11 @@
 import { spawn, type ChildProcess } from 'node:child_process';
 import { cpSync, mkdtempSync, readFileSync, readdirSync, rmSync } from 'node:fs';
 import http from 'node:http';
-import net from 'node:net';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { isDeepStrictEqual } from 'node:util';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { freePort } from './support/freePort.js';
 import { REPO_MAPS } from './support/server.js';
 
 const REPO_ROOT = path.resolve(import.meta.dirname, '..');
@@ -58,18 +58,6 @@ function bigGrid(version: 'A' | 'B') {
 
 const VERSIONS = { A: bigGrid('A'), B: bigGrid('B') };
 const TEXT = { A: JSON.stringify(VERSIONS.A), B: JSON.stringify(VERSIONS.B) };
-
-function freePort(): Promise<number> {
-  return new Promise((resolve, reject) => {
-    const s = net.createServer();
-    s.once('error', reject);
-    s.listen(0, '127.0.0.1', () => {
-      const addr = s.address();
-      const port = typeof addr === 'object' && addr ? addr.port : 0;
-      s.close(() => resolve(port));
-    });
-  });
-}
 
 interface Reply {
   status: number;

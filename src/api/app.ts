@@ -53,8 +53,16 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
   app.setValidatorCompiler(validatorCompiler);
   // Response schemas document the API; bodies are serialised with plain JSON.stringify for speed.
   app.setSerializerCompiler(() => (data) => JSON.stringify(data));
+  // Graceful close: idle keep-alive connections are closed when close begins (fastify's default);
+  // responses sent after that ask the client to drop the connection, so in-flight requests finish
+  // and the server still stops.
+  let closing = false;
+  app.addHook('preClose', async () => {
+    closing = true;
+  });
   app.addHook('onSend', async (request, reply) => {
     reply.header('x-request-id', request.id);
+    if (closing) reply.header('connection', 'close');
   });
   app.addContentTypeParser(['text/csv', 'text/plain'], { parseAs: 'string' }, (_req, body, done) => done(null, body));
 

@@ -205,11 +205,12 @@ export class Registry {
 
   /** The built drivetrain (cached until a machine or the drivetrain changes). */
   getDrivetrain(name: string): Drivetrain | undefined {
+    // Cached until the drivetrain or one of its machines changes (both drop the entry).
+    const hit = this.built.get(name);
+    if (hit) return hit.dt;
     const entry = this.drivetrains.get(name);
     if (!entry) return undefined;
     const hash = this.drivetrainContentHash(entry);
-    const hit = this.built.get(name);
-    if (hit && hit.hash === hash) return hit.dt;
     const dt = buildDrivetrain(name, entry.doc, (n) => this.machines.get(n)?.map);
     this.built.set(name, { hash, dt });
     return dt;
