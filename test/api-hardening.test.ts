@@ -55,3 +55,27 @@ describe('metrics and limits', () => {
     await request(ctx.srv.url).get('/docs/').expect(200);
   });
 });
+
+describe('load shedding', () => {
+  const ctx = useTestServer({ maxEventLoopDelayMs: 20 });
+
+  it('answers 503 overloaded with Retry-After while the event loop lags, then recovers', async () => {
+    await request(ctx.srv.url).get('/v1/machines').expect(200);
+    // Make this process's event loop (the server runs in it) lag for over two sampling intervals:
+    // 50 ms busy bursts with a turn of the loop between them.
+    const end = Date.now() + 2300;
+    while (Date.now() < end) {
+      const burst = Date.now() + 50;
+      while (Date.now() < burst) {
+        // busy
+      }
+      await new Promise((resolve) => setImmediate(resolve));
+    }
+    const r = await request(ctx.srv.url).get('/v1/machines');
+    expect(r.status).toBe(503);
+    expect(r.body.error.code).toBe('overloaded');
+    expect(r.headers['retry-after']).toBe('5');
+    await new Promise((resolve) => setTimeout(resolve, 2500));
+    await request(ctx.srv.url).get('/v1/machines').expect(200);
+  });
+});
