@@ -47,7 +47,12 @@ describe('graceful shutdown', () => {
         headers: { 'content-type': 'application/json' },
         body: JSON.stringify({ points }),
       });
-      await new Promise((r) => setTimeout(r, 300));
+      // Signal once the server has logged the incoming batch (it is then in flight).
+      const seen = Date.now() + 20_000;
+      while (!output.includes('"url":"/v1/drivetrains/van-axle/operating-points"')) {
+        if (Date.now() > seen) throw new Error('the batch request was never logged');
+        await new Promise((r) => setTimeout(r, 20));
+      }
       proc.kill('SIGTERM');
       const res = await slow;
       expect(res.status).toBe(200);
