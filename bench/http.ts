@@ -16,6 +16,7 @@ import { buildApp } from '../src/api/app.js';
 import { configFromEnv } from '../src/config.js';
 import { describeDrivetrain } from '../src/solver/drivetrain.js';
 import { solvePoints, type WheelPoint } from '../src/solver/point.js';
+import { prng } from './prng.js';
 
 const MAPS_DIR = path.resolve(import.meta.dirname, '../maps');
 const DRIVETRAIN = 'van-axle';
@@ -68,17 +69,6 @@ export interface Figures {
   };
 }
 
-/** Deterministic uniform numbers in [0, 1) (mulberry32), so every run sends the same points. */
-function prng(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 /**
  * Wheel points spread over the drivetrain's working range: speed 0–95 % of its top wheel speed,

@@ -17,6 +17,7 @@ import { buildApp } from '../src/api/app.js';
 import { configFromEnv } from '../src/config.js';
 import { describeDrivetrain } from '../src/solver/drivetrain.js';
 import { spreadPoints } from './http.js';
+import { prng } from './prng.js';
 
 const MAPS_DIR = path.resolve(import.meta.dirname, '../maps');
 const HARD_CAP_S = 60;
@@ -56,17 +57,6 @@ export interface SoakReport {
   memory: { start: MemoryFigures; end: MemoryFigures; peakRssMB: number; gcBeforeReadings: boolean };
 }
 
-/** Deterministic uniform numbers in [0, 1) (mulberry32). */
-function prng(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 /** A small invented grid map; `scale` varies the losses between uploads. */
 function tempMachine(scale: number) {

@@ -9,19 +9,7 @@ import { ModelError } from '../problem.js';
 import { CELL_FLOAT_FIELDS, tableCell, type LookupTable, type TableCell } from '../solver/tableResult.js';
 import { MODES, type Mode } from '../solver/types.js';
 
-export const TABLE_CSV_COLUMNS = [
-  'wheelSpeedRpm',
-  'wheelTorqueNm',
-  'feasible',
-  'mode',
-  'sunSpeedRpm',
-  'sunTorqueNm',
-  'ringSpeedRpm',
-  'ringTorqueNm',
-  'batteryW',
-  'systemEfficiency',
-  'frictionBrakeNm',
-] as const;
+export const TABLE_CSV_COLUMNS = ['wheelSpeedRpm', 'wheelTorqueNm', 'feasible', 'mode', ...CELL_FLOAT_FIELDS] as const;
 
 function num(x: number | null): string {
   if (x === null) return '';

@@ -24,6 +24,29 @@ export interface MachineEntry extends LoadedMachine {
   shadowed?: MachineEntry;
 }
 
+/** One line of the machine list: limits and peak efficiency (API and command line alike). */
+export interface MachineListItem {
+  name: string;
+  kind: MachineDoc['kind'];
+  origin: Origin;
+  maxTorqueNm: number;
+  maxPowerW: number;
+  maxSpeedRpm: number;
+  peakEfficiency: MachineEntry['summary']['peakEfficiency'];
+}
+
+export function machineListItem(e: MachineEntry): MachineListItem {
+  return {
+    name: e.name,
+    kind: e.doc.kind,
+    origin: e.origin,
+    maxTorqueNm: e.summary.maxTorqueNm,
+    maxPowerW: e.summary.maxPowerW,
+    maxSpeedRpm: e.summary.speedRangeRpm.max,
+    peakEfficiency: e.summary.peakEfficiency,
+  };
+}
+
 export interface DrivetrainEntry {
   name: string;
   doc: DrivetrainDoc;

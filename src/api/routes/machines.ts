@@ -3,7 +3,7 @@ import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
 import { z } from 'zod';
 import { parseMachineCsv } from '../../machine/csv.js';
 import { machineDocSchema } from '../../machine/schema.js';
-import type { MachineEntry } from '../../store/registry.js';
+import { machineListItem, type MachineEntry } from '../../store/registry.js';
 import { ApiError } from '../errors.js';
 import { errorBodySchema, nameParams } from '../schemas.js';
 
@@ -59,22 +59,14 @@ export const machineRoutes: FastifyPluginAsyncZod = async (app) => {
                 maxTorqueNm: z.number(),
                 maxPowerW: z.number(),
                 maxSpeedRpm: z.number(),
+                peakEfficiency: z.object({ motoring: peak, generating: peak }),
               }),
             ),
           }),
         },
       },
     },
-    async () => ({
-      machines: app.registry.listMachines().map((e) => ({
-        name: e.name,
-        kind: e.doc.kind,
-        origin: e.origin,
-        maxTorqueNm: e.summary.maxTorqueNm,
-        maxPowerW: e.summary.maxPowerW,
-        maxSpeedRpm: e.summary.speedRangeRpm.max,
-      })),
-    }),
+    async () => ({ machines: app.registry.listMachines().map(machineListItem) }),
   );
 
   app.get(

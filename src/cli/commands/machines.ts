@@ -1,25 +1,10 @@
 /** `episplit machines`: the machine maps with their limits and peak efficiency. */
 import type { Command } from 'commander';
+import { machineListItem, type MachineListItem } from '../../store/registry.js';
 import { callServer, openRegistry } from '../context.js';
 import { addSourceOptions, sourceOf } from '../options.js';
 import { writeStdout } from '../output.js';
 import { fixed, textTable } from '../textTable.js';
-
-interface Peak {
-  efficiency: number;
-  speedRpm: number;
-  torqueNm: number;
-}
-
-export interface MachineListItem {
-  name: string;
-  kind: string;
-  origin: 'maps' | 'data';
-  maxTorqueNm: number;
-  maxPowerW: number;
-  maxSpeedRpm: number;
-  peakEfficiency: { motoring: Peak | null; generating: Peak | null };
-}
 
 interface MachinesOptions {
   maps: string;
@@ -29,28 +14,11 @@ interface MachinesOptions {
 }
 
 async function fromServer(url: string): Promise<MachineListItem[]> {
-  const list = (await (await callServer(url, 'GET', '/v1/machines')).json()) as { machines: Omit<MachineListItem, 'peakEfficiency'>[] };
-  const out: MachineListItem[] = [];
-  for (const m of list.machines) {
-    const one = (await (await callServer(url, 'GET', `/v1/machines/${encodeURIComponent(m.name)}`)).json()) as {
-      summary: { peakEfficiency: MachineListItem['peakEfficiency'] };
-    };
-    out.push({ ...m, peakEfficiency: one.summary.peakEfficiency });
-  }
-  return out;
+  return ((await (await callServer(url, 'GET', '/v1/machines')).json()) as { machines: MachineListItem[] }).machines;
 }
 
 async function fromFolders(opts: MachinesOptions): Promise<MachineListItem[]> {
-  const registry = await openRegistry(sourceOf(opts));
-  return registry.listMachines().map((e) => ({
-    name: e.name,
-    kind: e.doc.kind,
-    origin: e.origin,
-    maxTorqueNm: e.summary.maxTorqueNm,
-    maxPowerW: e.summary.maxPowerW,
-    maxSpeedRpm: e.summary.speedRangeRpm.max,
-    peakEfficiency: e.summary.peakEfficiency,
-  }));
+  return (await openRegistry(sourceOf(opts))).listMachines().map(machineListItem);
 }
 
 export function machinesText(list: readonly MachineListItem[]): string {
