@@ -11,6 +11,7 @@ import type { Drivetrain } from '../../solver/drivetrain.js';
 import type { Mode } from '../../solver/types.js';
 import { errorBodySchema, nameParams } from '../schemas.js';
 import { drivetrainOr404 } from './common.js';
+import { cycleAnswerSchema } from './cycleSchemas.js';
 import { modeSchema } from './solverSchemas.js';
 
 export const cycleRequestSchema = z
@@ -85,7 +86,7 @@ export const cycleRoutes: FastifyPluginAsyncZod = async (app) => {
         params: nameParams,
         body: cycleRequestSchema,
         response: {
-          200: z.object({ result: z.unknown(), comparison: z.unknown().optional(), bounds: z.unknown().optional() }),
+          200: cycleAnswerSchema,
           400: errorBodySchema,
           404: errorBodySchema,
           413: errorBodySchema,

@@ -2,6 +2,7 @@
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
 import { z } from 'zod';
 import { describeDrivetrain, drivetrainSchema } from '../../solver/drivetrain.js';
+import { modeSchema } from './solverSchemas.js';
 import type { DrivetrainEntry } from '../../store/registry.js';
 import { ApiError } from '../errors.js';
 import { errorBodySchema, nameParams } from '../schemas.js';
@@ -10,8 +11,21 @@ const drivetrainView = z.object({
   name: z.string(),
   origin: z.enum(['maps', 'data']),
   hash: z.string().describe('SHA-256 of the drivetrain document and both machine documents'),
-  document: z.unknown().describe('The drivetrain document'),
-  derived: z.unknown().describe('Derived facts: k, planet teeth, available modes, single-machine ratios, max wheel torque and speed'),
+  document: drivetrainSchema.describe('The drivetrain document'),
+  derived: z
+    .object({
+      name: z.string(),
+      k: z.number().describe('k = Zr/Zs'),
+      planetTeeth: z.number().describe('Zp = (Zr − Zs)/2'),
+      availableModes: z.array(modeSchema),
+      ratios: z.record(z.string(), z.number()).describe('Machine speed / wheel speed of each fixed-ratio mode, final drive included'),
+      standstillMaxWheelNm: z.number().describe('Largest wheel torque at standstill, N·m'),
+      standstillMaxReverseWheelNm: z.number(),
+      maxWheelSpeedRpm: z.number(),
+      maxReverseWheelSpeedRpm: z.number(),
+      maxVehicleSpeedKph: z.number(),
+    })
+    .describe('Derived facts'),
 });
 
 export const drivetrainRoutes: FastifyPluginAsyncZod = async (app) => {
