@@ -1,8 +1,10 @@
 /**
  * HTTP throughput of the service on loopback: `GET /health` against a single-point
  * `POST /v1/drivetrains/van-axle/operating-points` (autocannon, load generator in a worker thread,
- * the two interleaved in rounds so that both see the same machine load), then a 10 000-point
- * batch over HTTP against the same points solved in process with `solvePoints`.
+ * interleaved in rounds so that all see the same machine load) with two point mixes: a spread over
+ * the whole speed × torque box (a third of the points beyond the limits, the costly answers) and
+ * the wheel demand of an invented delivery van over the NEDC (what a vehicle simulation asks);
+ * then a 10 000-point batch over HTTP against the same points solved in process.
  *
  * Run alone: `npx tsx bench/http.ts`. Figures are ratios within one run; absolute rates depend on
  * the machine and on whatever else runs on it.
@@ -16,6 +18,10 @@ import { buildApp } from '../src/api/app.js';
 import { configFromEnv } from '../src/config.js';
 import { describeDrivetrain } from '../src/solver/drivetrain.js';
 import { solvePoints, type WheelPoint } from '../src/solver/point.js';
+import { radSToRpm } from '../src/units.js';
+import { getBuiltinCycle } from '../src/vehicle/cycles.js';
+import { cycleWheelDemand } from '../src/vehicle/roadLoad.js';
+import { parseVehicle } from '../src/vehicle/schema.js';
 import { prng } from './prng.js';
 
 const MAPS_DIR = path.resolve(import.meta.dirname, '../maps');
@@ -54,6 +60,9 @@ export interface Figures {
   singlePoint: LoadFigures;
   /** singlePoint.reqPerS / health.reqPerS (target >= 0.5). */
   singlePointToHealth: number;
+  /** Single points from a drive cycle's wheel demand. */
+  cyclePoint: LoadFigures;
+  cyclePointToHealth: number;
   batch: {
     points: number;
     /** Median time from sending the request to the last byte of the answer, ms. */
@@ -134,28 +143,44 @@ export async function runHttpBench(opts: HttpBenchOptions = {}): Promise<Figures
       headers: { 'content-type': 'application/json' },
       body: JSON.stringify({ points: [p] }),
     }));
+    // The NEDC wheel demand of an invented 2.6 t delivery van (our own demo scenario).
+    const van = parseVehicle({ massKg: 2600, rotatingMassFactor: 0.05, rollingResistance: 0.011, dragAreaM2: 1.9, auxiliaryW: 400 });
+    const demand = cycleWheelDemand(van, getBuiltinCycle('nedc'), dt.wheelRadiusM);
+    const fromCycle = Array.from({ length: demand.steps }, (_, k) => ({
+      method: 'POST' as const,
+      path: route,
+      headers: { 'content-type': 'application/json' },
+      body: JSON.stringify({ points: [{ wheelSpeedRpm: radSToRpm(demand.wheelSpeedRadS[k]!), wheelTorqueNm: demand.wheelTorqueNm[k]! }] }),
+    }));
     const common = { url: base, connections, workers: 1 };
     const health = { ...common, requests: [{ method: 'GET' as const, path: '/health' }] };
     const point = { ...common, requests: single };
+    const cyclePoint = { ...common, requests: fromCycle };
 
     log(`http bench: loopback ${base}, ${connections} connections, ${rounds} × ${roundS} s per endpoint (interleaved), load generator in a worker thread`);
     // Warm-up (JIT, connection set-up); not counted.
     await cannon({ ...health, duration: 1 });
     await cannon({ ...point, duration: 1 });
+    await cannon({ ...cyclePoint, duration: 1 });
     const h: autocannon.Result[] = [];
     const s: autocannon.Result[] = [];
+    const c: autocannon.Result[] = [];
     for (let i = 0; i < rounds; i++) {
       h.push(await cannon({ ...health, duration: roundS }));
       s.push(await cannon({ ...point, duration: roundS }));
+      c.push(await cannon({ ...cyclePoint, duration: roundS }));
     }
     const healthFig = combine(h);
     const pointFig = combine(s);
+    const cycleFig = combine(c);
     const ratio = pointFig.reqPerS / healthFig.reqPerS;
+    const cycleRatio = cycleFig.reqPerS / healthFig.reqPerS;
     const line = (label: string, f: LoadFigures) =>
       `${label}: ${f.reqPerS.toFixed(0)} req/s, p50 ${f.p50Ms.toFixed(1)} ms, p99 ${f.p99Ms.toFixed(1)} ms (worst round), ${f.requests} requests, non-2xx ${f.non2xx}, errors ${f.errors}, timeouts ${f.timeouts}`;
     log(line('GET /health', healthFig));
-    log(line(`POST ${route} (1 point, 256 rotating bodies)`, pointFig));
-    log(`single point / health: ${ratio.toFixed(2)} (target >= 0.5)`);
+    log(line(`POST ${route} (1 point, spread over the speed × torque box, 256 rotating bodies)`, pointFig));
+    log(line(`POST ${route} (1 point, NEDC wheel demand of the demo van, ${fromCycle.length} rotating bodies)`, cycleFig));
+    log(`single point / health: spread ${ratio.toFixed(2)}, drive-cycle points ${cycleRatio.toFixed(2)} (target >= 0.5)`);
 
     // Batch: HTTP end to end against the solver in process, same points, median of the repeats.
     const points = spreadPoints(batchPoints, facts.maxWheelSpeedRpm, facts.standstillMaxWheelNm, 11);
@@ -198,7 +223,7 @@ export async function runHttpBench(opts: HttpBenchOptions = {}): Promise<Figures
     log(`${batchPoints}-point batch over HTTP: ${batch.httpMs.toFixed(0)} ms median of ${batchRepeats} (${runs(httpRuns)}), client JSON parse ${batch.clientParseMs.toFixed(0)} ms more`);
     log(`${batchPoints} points in process (solvePoints): ${batch.inProcessMs.toFixed(0)} ms median of ${batchRepeats} (${runs(procRuns)})`);
     log(`HTTP / in process: ${batch.ratio.toFixed(2)} (target <= 10)`);
-    return { health: healthFig, singlePoint: pointFig, singlePointToHealth: ratio, batch };
+    return { health: healthFig, singlePoint: pointFig, singlePointToHealth: ratio, cyclePoint: cycleFig, cyclePointToHealth: cycleRatio, batch };
   } finally {
     await app.close();
     rmSync(dataDir, { recursive: true, force: true });
