@@ -32,8 +32,14 @@ export class ModelError extends Error {
   }
 }
 
+/** A validation issue's path as `base.a.b[3].c` (numbers become indices). */
+export function fieldPath(path: readonly PropertyKey[], base = ''): string {
+  let s = base;
+  for (const p of path) s = typeof p === 'number' ? `${s}[${p}]` : s ? `${s}.${String(p)}` : String(p);
+  return s;
+}
+
 /** Joins a base path and a key or index into `a.b[3].c` form. */
 export function joinPath(base: string | undefined, key: string | number): string {
-  if (typeof key === 'number') return `${base ?? ''}[${key}]`;
-  return base ? `${base}.${key}` : key;
+  return fieldPath([key], base ?? '');
 }

@@ -2,7 +2,7 @@
  * One entry point from any machine document to the canonical map: validates the document
  * with its zod schema, converts it by kind, and builds the canonical grid.
  */
-import { ModelError } from '../problem.js';
+import { fieldPath, ModelError } from '../problem.js';
 import { dqToGrid } from './dqModel.js';
 import { gridToInput } from './fromGrid.js';
 import { pointsToGrid } from './fromPoints.js';
@@ -21,7 +21,7 @@ export function parseMachineDoc(value: unknown): MachineDoc {
   const r = machineDocSchema.safeParse(value);
   if (!r.success) {
     const issue = r.error.issues[0]!;
-    const path = issue.path.map((p) => (typeof p === 'number' ? `[${p}]` : `.${String(p)}`)).join('').replace(/^\./, '');
+    const path = fieldPath(issue.path);
     throw new ModelError('map-invalid', issue.message, path || undefined);
   }
   return r.data;

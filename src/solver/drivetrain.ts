@@ -4,7 +4,7 @@
  * limits, sorted breakpoint arrays in machine speed and torque, and preallocated scratch.
  */
 import { z } from 'zod';
-import { ModelError } from '../problem.js';
+import { fieldPath, ModelError } from '../problem.js';
 import { machineName } from '../machine/schema.js';
 import type { MachineMap } from '../machine/map.js';
 import { checkGeometry } from '../gearset/geometry.js';
@@ -137,12 +137,6 @@ function mirrorAxis(axis: Float64Array): Float64Array {
   return out;
 }
 
-function zodPath(path: readonly PropertyKey[]): string {
-  let s = '';
-  for (const p of path) s = typeof p === 'number' ? `${s}[${p}]` : s ? `${s}.${String(p)}` : String(p);
-  return s;
-}
-
 /**
  * Validates a drivetrain document, checks the gear geometry, resolves the machines and prepares
  * everything the per-point solver needs.
@@ -153,7 +147,7 @@ export function buildDrivetrain(name: string, input: unknown, getMachine: (name:
   const parsed = drivetrainSchema.safeParse(input);
   if (!parsed.success) {
     const issue = parsed.error.issues[0]!;
-    const path = zodPath(issue.path);
+    const path = fieldPath(issue.path);
     throw new ModelError('drivetrain-invalid', `${path || 'document'}: ${issue.message}`, path || undefined);
   }
   const doc = parsed.data;

@@ -5,7 +5,7 @@
  * (ascending axes, the cell cap) and throws `ModelError('table-invalid', …, path)`.
  */
 import { z } from 'zod';
-import { ModelError } from '../problem.js';
+import { fieldPath, ModelError } from '../problem.js';
 import { MODES, type Mode } from './types.js';
 
 /** Longest axis of a table. */
@@ -106,7 +106,7 @@ export function resolveTableSpec(input: TableSpecInput | TableSpec, maxCells: nu
   const parsed = tableSpecSchema.safeParse(input);
   if (!parsed.success) {
     const issue = parsed.error.issues[0]!;
-    const path = issue.path.map((p, i) => (typeof p === 'number' ? `[${p}]` : i === 0 ? String(p) : `.${String(p)}`)).join('');
+    const path = fieldPath(issue.path);
     throw new ModelError('table-invalid', issue.message, path || undefined);
   }
   const spec = parsed.data;

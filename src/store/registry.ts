@@ -9,7 +9,7 @@ import path from 'node:path';
 import { loadMachine, parseMachineDoc, type LoadedMachine } from '../machine/load.js';
 import { parseMachineCsv } from '../machine/csv.js';
 import type { MachineDoc } from '../machine/schema.js';
-import { ModelError } from '../problem.js';
+import { fieldPath, ModelError } from '../problem.js';
 import { buildDrivetrain, drivetrainSchema, type Drivetrain, type DrivetrainDoc } from '../solver/drivetrain.js';
 import { documentPath, removeFileDurable, removeStaleTemps, writeFileAtomic } from './files.js';
 import { contentHash } from './hash.js';
@@ -292,9 +292,7 @@ export function parseDrivetrainDoc(value: unknown, base?: string): DrivetrainDoc
   const r = drivetrainSchema.safeParse(value);
   if (!r.success) {
     const issue = r.error.issues[0]!;
-    const p = [...(base ? [base] : []), ...issue.path.map(String)];
-    const pathStr = p.map((s) => (/^\d+$/.test(s) ? `[${s}]` : `.${s}`)).join('').replace(/^\./, '');
-    throw new ModelError('drivetrain-invalid', issue.message, pathStr || undefined);
+    throw new ModelError('drivetrain-invalid', issue.message, fieldPath(issue.path, base) || undefined);
   }
   return r.data;
 }

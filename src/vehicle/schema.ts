@@ -4,7 +4,7 @@
  */
 import { parse } from 'csv-parse/sync';
 import { z } from 'zod';
-import { ModelError } from '../problem.js';
+import { fieldPath, ModelError } from '../problem.js';
 import { SEA_LEVEL_AIR_DENSITY } from '../units.js';
 import { BUILTIN_CYCLE_IDS, getBuiltinCycle } from './cycles.js';
 
@@ -171,18 +171,12 @@ export function parseCycleCsv(text: string, name = 'csv', base = 'cycle'): Cycle
   return validateCycleTrace({ name, timeS, speedKph, gradePct }, base);
 }
 
-function zodPath(base: string, path: readonly PropertyKey[]): string {
-  let s = base;
-  for (const p of path) s = typeof p === 'number' ? `${s}[${p}]` : `${s}.${String(p)}`;
-  return s;
-}
-
 /** Validates a vehicle document (defaults applied); errors are `vehicle-invalid` with the field path. */
 export function parseVehicle(input: unknown, base = 'vehicle'): Vehicle {
   const r = vehicleSchema.safeParse(input);
   if (!r.success) {
     const issue = r.error.issues[0]!;
-    const path = zodPath(base, issue.path);
+    const path = fieldPath(issue.path, base);
     throw new ModelError('vehicle-invalid', `${path}: ${issue.message}`, path);
   }
   return r.data;
@@ -194,7 +188,7 @@ export function parseCycleInput(input: unknown, base = 'cycle'): Cycle {
   const r = (isBuiltin ? builtinCycleSchema : cycleTraceSchema).safeParse(input);
   if (!r.success) {
     const issue = r.error.issues[0]!;
-    const path = zodPath(base, issue.path);
+    const path = fieldPath(issue.path, base);
     const tooBig = issue.code === 'too_big';
     throw new ModelError(tooBig ? 'too-large' : 'cycle-invalid', `${path}: ${issue.message}`, path);
   }

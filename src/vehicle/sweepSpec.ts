@@ -5,7 +5,7 @@
  * geometry rules (src/gearset/geometry.ts) and gives every design a stable id and index.
  */
 import { z } from 'zod';
-import { ModelError } from '../problem.js';
+import { fieldPath, ModelError } from '../problem.js';
 import { checkGeometry } from '../gearset/geometry.js';
 import { drivetrainSchema } from '../solver/drivetrain.js';
 import { MODES } from '../solver/types.js';
@@ -91,18 +91,12 @@ export interface RejectedGearset {
   reason: string;
 }
 
-function zodPath(path: readonly PropertyKey[]): string {
-  let s = 'sweep';
-  for (const p of path) s = typeof p === 'number' ? `${s}[${p}]` : `${s}.${String(p)}`;
-  return s;
-}
-
 /** Validates a sweep specification (defaults applied); errors are `sweep-invalid` with the field path. */
 export function parseSweepSpec(input: unknown): SweepSpec {
   const r = sweepSpecSchema.safeParse(input);
   if (!r.success) {
     const issue = r.error.issues[0]!;
-    const path = zodPath(issue.path);
+    const path = fieldPath(issue.path, 'sweep');
     throw new ModelError('sweep-invalid', `${path}: ${issue.message}`, path);
   }
   return r.data;
