@@ -175,12 +175,14 @@ describe('episplit sweep and merge', () => {
       cli(['sweep', '--spec', specFile, '--out', f('all.csv'), ...src]),
       cli(['sweep', '--spec', specFile, '--shard', '0/2', '--out', f('s0.csv'), ...src]),
       cli(['sweep', '--spec', specFile, '--shard', '1/2', '--out', f('s1.csv'), ...src]),
+      cli(['sweep', '--spec', specFile, '--threads', '2', '--out', f('pooled.csv'), ...src]),
     ]);
     for (const r of runs) expect([r.code, r.stderr]).toEqual([0, '']);
     const merged = await cli(['merge', '--out', f('merged.csv'), f('s1.csv'), f('s0.csv')]);
     expect([merged.code, merged.stderr]).toEqual([0, '']);
     const all = readFileSync(f('all.csv'), 'utf8');
     expect(readFileSync(f('merged.csv'), 'utf8')).toBe(all);
+    expect(readFileSync(f('pooled.csv'), 'utf8')).toBe(all);
     // Six designs, each shard holds three; ranks differ per shard but not after merging.
     expect(all.trimEnd().split('\n')).toHaveLength(7);
     expect(readFileSync(f('s0.csv'), 'utf8').trimEnd().split('\n')).toHaveLength(4);

@@ -14,6 +14,7 @@ import { ModelError } from '../src/problem.js';
 import { scaleMachineTorque } from '../src/machine/scale.js';
 import { lossAt, maxTorqueAt } from '../src/machine/map.js';
 import { drivetrainDoc, machineLookup, SUN } from './support/syntheticDrivetrain.js';
+import { runSweepPooled } from '../src/vehicle/sweepPool.js';
 
 const getMachine = machineLookup();
 
@@ -112,6 +113,11 @@ describe('design sweep runs', () => {
     const parts = [2, 0, 1].map((i) => runSweep(s, shardDesigns(designs, i, 3), getMachine));
     expect(mergeSweepRows(parts)).toEqual(whole);
     expect(() => mergeSweepRows([parts[0]!, parts[0]!])).toThrow(ModelError);
+  });
+
+  it('gives the same rows on a worker pool of two threads', async () => {
+    const pooled = await runSweepPooled(s, designs, getMachine, { threads: 2 });
+    expect(pooled).toEqual(whole);
   });
 
   it('ranks by weighted Wh/km among the designs that meet the constraints', () => {

@@ -7,27 +7,15 @@
  * The worker script sits next to this file: `tableWorker.js` when compiled, else
  * `tableWorker.ts`, which is loaded through tsx's loader (`--import <tsx>`) in each worker.
  */
-import { existsSync } from 'node:fs';
-import { createRequire } from 'node:module';
 import { availableParallelism } from 'node:os';
 import { randomUUID } from 'node:crypto';
-import { fileURLToPath, pathToFileURL } from 'node:url';
 import { Piscina } from 'piscina';
 import type { Drivetrain } from './drivetrain.js';
 import { assembleTable, rowJob, type RowBlock, type TableOptions } from './table.js';
 import { resolveTableSpec, type TableSpecInput } from './tableSpec.js';
 import type { LookupTable } from './tableResult.js';
 import type { RowTask } from './tableWorker.js';
-
-/** Where the worker script is and what the worker threads need to load it. */
-export function workerScript(): { filename: string; execArgv: string[] } {
-  const js = new URL('./tableWorker.js', import.meta.url);
-  if (existsSync(fileURLToPath(js))) return { filename: js.href, execArgv: [] };
-  const ts = new URL('./tableWorker.ts', import.meta.url);
-  if (!existsSync(fileURLToPath(ts))) throw new Error(`table worker script not found next to ${fileURLToPath(import.meta.url)}`);
-  const tsx = pathToFileURL(createRequire(import.meta.url).resolve('tsx')).href;
-  return { filename: ts.href, execArgv: ['--import', tsx] };
-}
+import { workerScript } from './workerScript.js';
 
 export interface TablePoolOptions {
   /** Worker threads (default: available parallelism). */
@@ -43,7 +31,7 @@ export class TablePool {
 
   constructor(options: TablePoolOptions = {}) {
     this.threads = Math.max(1, Math.floor(options.threads ?? availableParallelism()));
-    const script = workerScript();
+    const script = workerScript(import.meta.url, 'tableWorker');
     this.pool = new Piscina<RowTask, RowBlock>({
       filename: script.filename,
       execArgv: script.execArgv,

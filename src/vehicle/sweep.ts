@@ -78,7 +78,8 @@ export function buildDesignDrivetrain(
   return buildDrivetrain('sweep-design', doc, (n) => maps.get(n));
 }
 
-function runDesign(spec: SweepSpec, cycles: Cycle[], design: SweepDesign, getMachine: (name: string) => MachineMap | undefined): SweepRow {
+/** Runs one design: launch and top-speed check, every cycle, constraints. */
+export function runSweepDesign(spec: SweepSpec, cycles: Cycle[], design: SweepDesign, getMachine: (name: string) => MachineMap | undefined): SweepRow {
   const row: SweepRow = {
     index: design.index,
     id: design.id,
@@ -158,6 +159,11 @@ export function rankSweepRows(rows: SweepRow[]): SweepRow[] {
   return rows;
 }
 
+/** The sweep's cycles, validated. */
+export function resolveSweepCycles(spec: SweepSpec): Cycle[] {
+  return spec.cycles.map((c, i) => resolveCycle(c.cycle, `sweep.cycles[${i}].cycle`));
+}
+
 /**
  * Runs the given designs of a sweep (all of them, or one shard's). `onProgress(done, total)` is
  * called after each design. Rows come back in index order, ranked within this set.
@@ -168,10 +174,10 @@ export function runSweep(
   getMachine: (name: string) => MachineMap | undefined,
   onProgress?: (done: number, total: number) => void,
 ): SweepRow[] {
-  const cycles = spec.cycles.map((c, i) => resolveCycle(c.cycle, `sweep.cycles[${i}].cycle`));
+  const cycles = resolveSweepCycles(spec);
   const rows: SweepRow[] = [];
   for (const d of designs) {
-    rows.push(runDesign(spec, cycles, d, getMachine));
+    rows.push(runSweepDesign(spec, cycles, d, getMachine));
     onProgress?.(rows.length, designs.length);
   }
   return rankSweepRows(rows);

@@ -5,7 +5,7 @@
 import { readFileSync, existsSync } from 'node:fs';
 import type { Command } from 'commander';
 import { ModelError } from '../../problem.js';
-import { parseShard } from '../args.js';
+import { parseNumber, parseShard } from '../args.js';
 import { CliError, openRegistry, readJsonFile } from '../context.js';
 import { addSourceOptions, sourceOf } from '../options.js';
 import { progressBar, writeOutput } from '../output.js';
@@ -16,6 +16,7 @@ interface SweepOptions {
   spec: string;
   out?: string;
   shard?: string;
+  threads?: string;
 }
 
 interface MergeOptions {
@@ -28,9 +29,14 @@ export function registerSweep(program: Command): void {
     .description('Run a design sweep (gear set, final drive, machine torque scales) over drive cycles; writes one CSV row per design')
     .requiredOption('--spec <file.json>', 'sweep specification JSON: drivetrain, vehicle, cycles, axes to try, constraints')
     .option('--out <file.csv>', 'output CSV, written atomically; "-" or absent: standard output')
-    .option('--shard <i/n>', 'run only shard i of n (designs whose index mod n is i), 0 <= i < n; join the outputs with "merge"');
+    .option('--shard <i/n>', 'run only shard i of n (designs whose index mod n is i), 0 <= i < n; join the outputs with "merge"')
+    .option('--threads <n>', 'worker threads; above 1 the designs run on a worker pool (default 1: in this process)');
   addSourceOptions(cmd, false).action(async (opts: SweepOptions) => {
     const shard = opts.shard === undefined ? undefined : parseShard(opts.shard);
+    const threads = opts.threads === undefined ? 1 : parseNumber(opts.threads, '--threads');
+    if (!Number.isInteger(threads) || threads < 1 || threads > 64) {
+      throw new CliError('invalid-request', `--threads ${opts.threads}: a whole number from 1 to 64`, '--threads');
+    }
     const { expandSweep, parseSweepSpec, runSweep, shardDesigns, sweepRowsToCsv } = await import('../../vehicle/sweep.js');
     const spec = parseSweepSpec(readJsonFile(opts.spec, 'sweep specification'));
     const all = expandSweep(spec);
@@ -39,7 +45,12 @@ export function registerSweep(program: Command): void {
     const progress = progressBar('sweep', 'designs');
     let csv: string;
     try {
-      const rows = runSweep(spec, designs, (name) => registry.getMachine(name)?.map, (done, total) => progress.update(done, total));
+      const getMachine = (name: string) => registry.getMachine(name)?.map;
+      const onProgress = (done: number, total: number) => progress.update(done, total);
+      const rows =
+        threads > 1
+          ? await (await import('../../vehicle/sweepPool.js')).runSweepPooled(spec, designs, getMachine, { threads, onProgress })
+          : runSweep(spec, designs, getMachine, onProgress);
       csv = sweepRowsToCsv(rows);
     } finally {
       progress.stop();
