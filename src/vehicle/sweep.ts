@@ -23,18 +23,10 @@ export interface SweepCycleFigures {
   unfollowedSteps: number;
 }
 
-export interface SweepRow {
-  index: number;
-  id: string;
-  sunTeeth: number;
-  ringTeeth: number;
-  planetTeeth: number;
-  planets: number;
+/** One design's figures: the design's own values, then what it achieved. */
+export interface SweepRow extends SweepDesign {
   /** k = Zr/Zs. */
   k: number;
-  finalDriveRatio: number;
-  sunTorqueScale: number;
-  ringTorqueScale: number;
   launchWheelTorqueNm: number;
   topSpeedKph: number;
   cycles: SweepCycleFigures[];

@@ -6,13 +6,17 @@ import { callServer, isFileRef, openRegistry, readJsonFile, resolveDrivetrain } 
 import { addSourceOptions, MODES_HELP, parseModes, sourceOf } from '../options.js';
 import { writeStdout } from '../output.js';
 
-interface PointOptions {
+/** Options every drivetrain-at-a-point-or-grid command shares. */
+export interface DrivetrainGridOptions {
   maps: string;
   data: string;
   url?: string;
   drivetrain: string;
   speed: string;
   torque: string;
+}
+
+interface PointOptions extends DrivetrainGridOptions {
   modes?: string;
   strict?: boolean;
 }

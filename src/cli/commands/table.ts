@@ -12,19 +12,14 @@ import { parseAxis, parseNumber } from '../args.js';
 import { callServer, CliError, contentHash, openRegistry, resolveDrivetrain } from '../context.js';
 import { addSourceOptions, MODES_HELP, nameForServer, parseModes, sourceOf } from '../options.js';
 import { progressBar, writeOutput } from '../output.js';
+import type { DrivetrainGridOptions } from './point.js';
 
 /** Tables with more cells than this are built on worker threads. */
 export const POOL_THRESHOLD_CELLS = 5000;
 
 const FORMATS = ['json', 'csv', 'c'] as const satisfies readonly TableFormat[];
 
-interface TableOptions {
-  maps: string;
-  data: string;
-  url?: string;
-  drivetrain: string;
-  speed: string;
-  torque: string;
+interface TableOptions extends DrivetrainGridOptions {
   format?: TableFormat;
   out?: string;
   margin?: string;
