@@ -63,6 +63,9 @@ export interface Figures {
   /** Single points from a drive cycle's wheel demand. */
   cyclePoint: LoadFigures;
   cyclePointToHealth: number;
+  /** The drive-cycle points with `alternatives: false`. */
+  leanPoint: LoadFigures;
+  leanPointToHealth: number;
   batch: {
     points: number;
     /** Median time from sending the request to the last byte of the answer, ms. */
@@ -146,41 +149,50 @@ export async function runHttpBench(opts: HttpBenchOptions = {}): Promise<Figures
     // The NEDC wheel demand of an invented 2.6 t delivery van (our own demo scenario).
     const van = parseVehicle({ massKg: 2600, rotatingMassFactor: 0.05, rollingResistance: 0.011, dragAreaM2: 1.9, auxiliaryW: 400 });
     const demand = cycleWheelDemand(van, getBuiltinCycle('nedc'), dt.wheelRadiusM);
-    const fromCycle = Array.from({ length: demand.steps }, (_, k) => ({
-      method: 'POST' as const,
-      path: route,
-      headers: { 'content-type': 'application/json' },
-      body: JSON.stringify({ points: [{ wheelSpeedRpm: radSToRpm(demand.wheelSpeedRadS[k]!), wheelTorqueNm: demand.wheelTorqueNm[k]! }] }),
-    }));
+    const cycleRequests = (extra: object) =>
+      Array.from({ length: demand.steps }, (_, k) => ({
+        method: 'POST' as const,
+        path: route,
+        headers: { 'content-type': 'application/json' },
+        body: JSON.stringify({ points: [{ wheelSpeedRpm: radSToRpm(demand.wheelSpeedRadS[k]!), wheelTorqueNm: demand.wheelTorqueNm[k]! }], ...extra }),
+      }));
+    const fromCycle = cycleRequests({});
     const common = { url: base, connections, workers: 1 };
     const health = { ...common, requests: [{ method: 'GET' as const, path: '/health' }] };
     const point = { ...common, requests: single };
     const cyclePoint = { ...common, requests: fromCycle };
+    const leanPoint = { ...common, requests: cycleRequests({ alternatives: false }) };
 
     log(`http bench: loopback ${base}, ${connections} connections, ${rounds} × ${roundS} s per endpoint (interleaved), load generator in a worker thread`);
     // Warm-up (JIT, connection set-up); not counted.
     await cannon({ ...health, duration: 1 });
     await cannon({ ...point, duration: 1 });
     await cannon({ ...cyclePoint, duration: 1 });
+    await cannon({ ...leanPoint, duration: 1 });
     const h: autocannon.Result[] = [];
     const s: autocannon.Result[] = [];
     const c: autocannon.Result[] = [];
+    const l: autocannon.Result[] = [];
     for (let i = 0; i < rounds; i++) {
       h.push(await cannon({ ...health, duration: roundS }));
       s.push(await cannon({ ...point, duration: roundS }));
       c.push(await cannon({ ...cyclePoint, duration: roundS }));
+      l.push(await cannon({ ...leanPoint, duration: roundS }));
     }
     const healthFig = combine(h);
     const pointFig = combine(s);
     const cycleFig = combine(c);
+    const leanFig = combine(l);
     const ratio = pointFig.reqPerS / healthFig.reqPerS;
     const cycleRatio = cycleFig.reqPerS / healthFig.reqPerS;
+    const leanRatio = leanFig.reqPerS / healthFig.reqPerS;
     const line = (label: string, f: LoadFigures) =>
       `${label}: ${f.reqPerS.toFixed(0)} req/s, p50 ${f.p50Ms.toFixed(1)} ms, p99 ${f.p99Ms.toFixed(1)} ms (worst round), ${f.requests} requests, non-2xx ${f.non2xx}, errors ${f.errors}, timeouts ${f.timeouts}`;
     log(line('GET /health', healthFig));
     log(line(`POST ${route} (1 point, spread over the speed × torque box, 256 rotating bodies)`, pointFig));
     log(line(`POST ${route} (1 point, NEDC wheel demand of the demo van, ${fromCycle.length} rotating bodies)`, cycleFig));
-    log(`single point / health: spread ${ratio.toFixed(2)}, drive-cycle points ${cycleRatio.toFixed(2)} (target >= 0.5)`);
+    log(line(`POST ${route} (the same drive-cycle points, "alternatives": false)`, leanFig));
+    log(`single point / health: spread ${ratio.toFixed(2)}, drive-cycle points ${cycleRatio.toFixed(2)}, without alternatives ${leanRatio.toFixed(2)} (target >= 0.5)`);
 
     // Batch: HTTP end to end against the solver in process, same points, median of the repeats.
     const points = spreadPoints(batchPoints, facts.maxWheelSpeedRpm, facts.standstillMaxWheelNm, 11);
@@ -223,7 +235,7 @@ export async function runHttpBench(opts: HttpBenchOptions = {}): Promise<Figures
     log(`${batchPoints}-point batch over HTTP: ${batch.httpMs.toFixed(0)} ms median of ${batchRepeats} (${runs(httpRuns)}), client JSON parse ${batch.clientParseMs.toFixed(0)} ms more`);
     log(`${batchPoints} points in process (solvePoints): ${batch.inProcessMs.toFixed(0)} ms median of ${batchRepeats} (${runs(procRuns)})`);
     log(`HTTP / in process: ${batch.ratio.toFixed(2)} (target <= 10)`);
-    return { health: healthFig, singlePoint: pointFig, singlePointToHealth: ratio, cyclePoint: cycleFig, cyclePointToHealth: cycleRatio, batch };
+    return { health: healthFig, singlePoint: pointFig, singlePointToHealth: ratio, cyclePoint: cycleFig, cyclePointToHealth: cycleRatio, leanPoint: leanFig, leanPointToHealth: leanRatio, batch };
   } finally {
     await app.close();
     rmSync(dataDir, { recursive: true, force: true });

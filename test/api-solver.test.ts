@@ -41,6 +41,17 @@ describe('drivetrains and operating points over HTTP', () => {
     expect(r.body.results[0].feasible).toBe(true);
   });
 
+  it('leaves the alternatives out when asked, with the same optimum', async () => {
+    const points = [{ wheelSpeedRpm: 400, wheelTorqueNm: 600 }, { wheelSpeedRpm: 800, wheelTorqueNm: -500 }];
+    const full = await request(ctx.srv.url).post('/v1/drivetrains/van-axle/operating-points').send({ points }).expect(200);
+    const lean = await request(ctx.srv.url).post('/v1/drivetrains/van-axle/operating-points').send({ points, alternatives: false }).expect(200);
+    for (let i = 0; i < points.length; i++) {
+      expect(full.body.results[i].alternatives.length).toBeGreaterThan(0);
+      expect(lean.body.results[i]).toEqual({ ...full.body.results[i], alternatives: [] });
+    }
+    expect(lean.text.length).toBeLessThan(0.6 * full.text.length);
+  });
+
   it('answers 100 000 points in order', async () => {
     const points = Array.from({ length: 100_000 }, (_, i) => ({ wheelSpeedRpm: (i % 1000) * 1.5, wheelTorqueNm: ((i * 7919) % 4000) - 2000 }));
     const r = await request(ctx.srv.url).post('/v1/drivetrains/van-axle/operating-points').send({ points }).expect(200);

@@ -3,7 +3,7 @@ import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
 import { z } from 'zod';
 import { solvePoints } from '../../solver/point.js';
 import type { Drivetrain } from '../../solver/drivetrain.js';
-import type { Mode } from '../../solver/types.js';
+import type { Mode, PointResult } from '../../solver/types.js';
 import { ApiError } from '../errors.js';
 import { errorBodySchema, nameParams } from '../schemas.js';
 import { pointResultSchema, solveOptionsSchema, wheelPointSchema } from './solverSchemas.js';
@@ -19,17 +19,24 @@ export const operatingPointRoutes: FastifyPluginAsyncZod = async (app) => {
   const pointsSchema = z.array(wheelPointSchema).min(1).describe(`Wheel points, at most ${maxPoints} per request`);
   const responses = { 200: z.object({ results: z.array(pointResultSchema) }), 400: errorBodySchema, 404: errorBodySchema, 413: errorBodySchema, 422: errorBodySchema };
 
-  const answer = async (dt: Drivetrain, points: Array<{ wheelSpeedRpm: number; wheelTorqueNm: number }>, modes: Mode[] | undefined, strict: boolean) => {
+  const answer = async (
+    dt: Drivetrain,
+    points: Array<{ wheelSpeedRpm: number; wheelTorqueNm: number }>,
+    modes: Mode[] | undefined,
+    strict: boolean,
+    alternatives: boolean,
+  ) => {
     if (points.length > maxPoints) {
       throw new ApiError('too-large', `${points.length} points in one request; at most ${maxPoints} are allowed — split the batch`, 'points');
     }
     app.metrics.solverPoints.inc(points.length);
     const opts = modes ? { modes, strict } : { strict };
-    if (points.length <= CHUNK_POINTS) return { results: solvePoints(dt, points, opts) };
-    const results = [];
+    const results: PointResult[] = [];
     for (let i = 0; i < points.length; i += CHUNK_POINTS) {
       if (i > 0) await yieldToEventLoop();
-      results.push(...solvePoints(dt, points.slice(i, i + CHUNK_POINTS), opts));
+      const chunk = solvePoints(dt, i === 0 && points.length <= CHUNK_POINTS ? points : points.slice(i, i + CHUNK_POINTS), opts);
+      if (!alternatives) for (const r of chunk) r.alternatives = [];
+      for (const r of chunk) results.push(r);
     }
     return { results };
   };
@@ -49,7 +56,7 @@ export const operatingPointRoutes: FastifyPluginAsyncZod = async (app) => {
     async (req) => {
       const dt = app.registry.getDrivetrain(req.params.name);
       if (!dt) throw new ApiError('not-found', `no drivetrain named "${req.params.name}"`);
-      return answer(dt, req.body.points, req.body.modes, req.body.strict);
+      return answer(dt, req.body.points, req.body.modes, req.body.strict, req.body.alternatives);
     },
   );
 
@@ -67,7 +74,7 @@ export const operatingPointRoutes: FastifyPluginAsyncZod = async (app) => {
     },
     async (req) => {
       const { dt } = app.registry.buildInline(req.body.drivetrain);
-      return answer(dt, req.body.points, req.body.modes, req.body.strict);
+      return answer(dt, req.body.points, req.body.modes, req.body.strict, req.body.alternatives);
     },
   );
 };

@@ -14,6 +14,10 @@ export const wheelPointSchema = z
 export const solveOptionsSchema = {
   modes: z.array(modeSchema).min(1).max(4).optional().describe('Only consider these modes (still only those the devices allow)'),
   strict: z.boolean().default(false).describe('Braking beyond what machines and battery absorb is infeasible instead of using friction brakes'),
+  alternatives: z
+    .boolean()
+    .default(true)
+    .describe('Include the best setting of every other feasible mode (false: answers about half the size, for simulations stepping fast)'),
 };
 
 const machineStateSchema = z.object({
