@@ -1,5 +1,5 @@
 /**
- * Errors raised by the computational core. Each carries a stable code from the catalogue
+ * Errors raised below the HTTP layer (the computational core and the document store). Each carries a stable code from the catalogue
  * (src/api/errors.ts maps codes to HTTP statuses) and, where it applies, the path of the
  * offending field in dotted/indexed form (e.g. `lossW[3][7]`).
  */
@@ -17,6 +17,8 @@ export const PROBLEM_CODES = [
   'too-large',
   'unknown-machine',
   'infeasible',
+  'read-only',
+  'in-use',
 ] as const;
 
 export type ProblemCode = (typeof PROBLEM_CODES)[number];
@@ -29,6 +31,12 @@ export class ModelError extends Error {
     this.name = 'ModelError';
     this.code = code;
     if (path !== undefined) this.path = path;
+  }
+
+  /** The same error with its path placed under `base` (for a document nested in a request). */
+  under(base: string): ModelError {
+    const p = this.path;
+    return new ModelError(this.code, this.message, p === undefined ? base : p.startsWith('[') ? base + p : `${base}.${p}`);
   }
 }
 

@@ -93,6 +93,17 @@ describe('drivetrains and operating points over HTTP', () => {
       .send({ drivetrain: { ...doc, gearset: { ...doc.gearset, planets: 40 } }, points: [{ wheelSpeedRpm: 1, wheelTorqueNm: 1 }] })
       .expect(422);
     expect(bad.body.error.path).toBe('drivetrain.gearset.planets');
+    const odd = await request(ctx.srv.url)
+      .post('/v1/operating-points')
+      .send({ drivetrain: { ...doc, gearset: { ...doc.gearset, ringTeeth: 79 } }, points: [{ wheelSpeedRpm: 1, wheelTorqueNm: 1 }] })
+      .expect(422);
+    expect(odd.body.error.code).toBe('gearset-invalid');
+    expect(odd.body.error.path).toMatch(/^drivetrain\.gearset\./);
+    const missing = await request(ctx.srv.url)
+      .post('/v1/operating-points')
+      .send({ drivetrain: { ...doc, ringMachine: 'no-such' }, points: [{ wheelSpeedRpm: 1, wheelTorqueNm: 1 }] })
+      .expect(422);
+    expect(missing.body.error.path).toBe('drivetrain.ringMachine');
   });
 
   it('a drivetrain can be stored and survives deleting its machine only after it is gone', async () => {

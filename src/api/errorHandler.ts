@@ -4,7 +4,6 @@
  */
 import type { FastifyError, FastifyInstance, FastifyReply, FastifyRequest } from 'fastify';
 import { ModelError } from '../problem.js';
-import { ApiLikeError } from '../store/registry.js';
 import { ApiError, ERROR_CATALOGUE, errorBody, type ErrorCode } from './errors.js';
 
 /** `/a/b/0/c` → `a.b[0].c` */
@@ -32,7 +31,6 @@ export function installErrorHandling(app: FastifyInstance): void {
   app.setErrorHandler((err: FastifyError & { validationContext?: string }, request: FastifyRequest, reply: FastifyReply) => {
     if (err instanceof ApiError) return sendError(reply, err.code, err.message, err.path);
     if (err instanceof ModelError) return sendError(reply, err.code, err.message, err.path);
-    if (err instanceof ApiLikeError) return sendError(reply, err.code, err.message);
     if (Array.isArray(err.validation) && err.validation.length > 0) {
       const first = err.validation[0]!;
       const ctx = err.validationContext ?? 'body';

@@ -9,8 +9,8 @@ import path from 'node:path';
 import { loadMachine, parseMachineDoc, type LoadedMachine } from '../machine/load.js';
 import { parseMachineCsv } from '../machine/csv.js';
 import type { MachineDoc } from '../machine/schema.js';
-import { fieldPath, ModelError } from '../problem.js';
-import { buildDrivetrain, drivetrainSchema, type Drivetrain, type DrivetrainDoc } from '../solver/drivetrain.js';
+import { ModelError } from '../problem.js';
+import { buildDrivetrain, type Drivetrain, type DrivetrainDoc } from '../solver/drivetrain.js';
 import { documentPath, removeFileDurable, removeStaleTemps, writeFileAtomic } from './files.js';
 import { contentHash } from './hash.js';
 
@@ -55,6 +55,23 @@ export interface DrivetrainEntry {
   shadowed?: DrivetrainEntry;
 }
 
+/**
+ * Puts an entry in its map. A DATA_DIR entry keeps the MAPS_DIR document of the same name it
+ * hides, so deleting the upload brings the shipped one back.
+ */
+function place<E extends { name: string; origin: Origin; shadowed?: E }>(map: Map<string, E>, entry: E): void {
+  const prev = map.get(entry.name);
+  const shadow = entry.origin === 'data' && prev ? (prev.origin === 'maps' ? prev : prev.shadowed) : undefined;
+  if (shadow) entry.shadowed = shadow;
+  map.set(entry.name, entry);
+}
+
+/** Takes an entry out of its map, bringing back the shipped document it hid, if any. */
+function unplace<E extends { name: string; shadowed?: E }>(map: Map<string, E>, entry: E): void {
+  if (entry.shadowed) map.set(entry.name, entry.shadowed);
+  else map.delete(entry.name);
+}
+
 export interface LoadProblem {
   file: string;
   code: string;
@@ -65,7 +82,8 @@ export interface LoadProblem {
 export class Registry {
   private readonly machines = new Map<string, MachineEntry>();
   private readonly drivetrains = new Map<string, DrivetrainEntry>();
-  private readonly built = new Map<string, { hash: string; dt: Drivetrain }>();
+  /** Built drivetrains, dropped when the drivetrain or one of its machines changes. */
+  private readonly built = new Map<string, Drivetrain>();
   private writeChain: Promise<unknown> = Promise.resolve();
   ready = false;
   problems: LoadProblem[] = [];
@@ -122,7 +140,7 @@ export class Registry {
     await visit(this.drivetrainDir, 'data', 'drivetrain');
     for (const p of pendingDrivetrains) {
       try {
-        this.installDrivetrain(p.name, parseDrivetrainDoc(p.value), p.origin);
+        this.installDrivetrain(p.name, p.value, p.origin);
       } catch (err) {
         this.problems.push(problemOf(p.file, err));
       }
@@ -131,21 +149,17 @@ export class Registry {
   }
 
   private installMachine(name: string, doc: MachineDoc, origin: Origin): MachineEntry {
-    const loaded = loadMachine(name, doc);
-    const prev = this.machines.get(name);
-    const entry: MachineEntry = { ...loaded, name, origin, hash: contentHash(doc) };
-    if (origin === 'data' && prev) entry.shadowed = prev.origin === 'maps' ? prev : prev.shadowed;
-    this.machines.set(name, entry);
+    const entry: MachineEntry = { ...loadMachine(name, doc), name, origin, hash: contentHash(doc) };
+    place(this.machines, entry);
     return entry;
   }
 
-  private installDrivetrain(name: string, doc: DrivetrainDoc, origin: Origin): DrivetrainEntry {
-    const prev = this.drivetrains.get(name);
-    const entry: DrivetrainEntry = { name, doc, origin, hash: contentHash(doc) };
-    // Built now so a drivetrain that names a missing machine or breaks a rule is refused here.
-    buildDrivetrain(name, doc, (n) => this.machines.get(n)?.map);
-    if (origin === 'data' && prev) entry.shadowed = prev.origin === 'maps' ? prev : prev.shadowed;
-    this.drivetrains.set(name, entry);
+  /** Builds (so a drivetrain naming a missing machine or breaking a rule is refused), then installs. */
+  private installDrivetrain(name: string, value: unknown, origin: Origin): DrivetrainEntry {
+    const dt = buildDrivetrain(name, value, (n) => this.machines.get(n)?.map);
+    const entry: DrivetrainEntry = { name, doc: dt.doc, origin, hash: contentHash(dt.doc) };
+    place(this.drivetrains, entry);
+    this.built.set(name, dt);
     return entry;
   }
 
@@ -183,13 +197,8 @@ export class Registry {
       }
       await writeFileAtomic(documentPath(this.machineDir, name), JSON.stringify(doc, null, 1) + '\n');
       const created = !this.machines.has(name);
-      const prev = this.machines.get(name);
       const entry: MachineEntry = { ...loaded, name, origin: 'data', hash: contentHash(doc) };
-      if (prev) {
-        const shadow = prev.origin === 'maps' ? prev : prev.shadowed;
-        if (shadow) entry.shadowed = shadow;
-      }
-      this.machines.set(name, entry);
+      place(this.machines, entry);
       this.forgetBuiltUsing(name);
       return { created, entry };
     });
@@ -200,15 +209,14 @@ export class Registry {
       const entry = this.machines.get(name);
       if (!entry) throw new ModelError('not-found', `no machine named "${name}"`);
       if (entry.origin === 'maps') {
-        throw new ApiLikeError('read-only', `machine "${name}" comes from MAPS_DIR; remove its file there to delete it`);
+        throw new ModelError('read-only', `machine "${name}" comes from MAPS_DIR; remove its file there to delete it`);
       }
       const users = [...this.drivetrains.values()].filter((d) => d.doc.sunMachine === name || d.doc.ringMachine === name);
       if (users.length > 0 && !entry.shadowed) {
-        throw new ApiLikeError('in-use', `machine "${name}" is used by drivetrain(s) ${users.map((u) => `"${u.name}"`).join(', ')}; delete those first`);
+        throw new ModelError('in-use', `machine "${name}" is used by drivetrain(s) ${users.map((u) => `"${u.name}"`).join(', ')}; delete those first`);
       }
       await removeFileDurable(documentPath(this.machineDir, name));
-      if (entry.shadowed) this.machines.set(name, entry.shadowed);
-      else this.machines.delete(name);
+      unplace(this.machines, entry);
       this.forgetBuiltUsing(name);
     });
   }
@@ -226,40 +234,37 @@ export class Registry {
     return contentHash(entry.hash, this.machines.get(entry.doc.sunMachine)?.hash ?? '', this.machines.get(entry.doc.ringMachine)?.hash ?? '');
   }
 
-  /** The built drivetrain (cached until a machine or the drivetrain changes). */
+  /** The built drivetrain (cached until the drivetrain or one of its machines changes). */
   getDrivetrain(name: string): Drivetrain | undefined {
-    // Cached until the drivetrain or one of its machines changes (both drop the entry).
     const hit = this.built.get(name);
-    if (hit) return hit.dt;
+    if (hit) return hit;
     const entry = this.drivetrains.get(name);
     if (!entry) return undefined;
-    const hash = this.drivetrainContentHash(entry);
     const dt = buildDrivetrain(name, entry.doc, (n) => this.machines.get(n)?.map);
-    this.built.set(name, { hash, dt });
+    this.built.set(name, dt);
     return dt;
   }
 
-  /** Builds a drivetrain sent inline (machines by name); not stored. */
+  /** Builds a drivetrain sent inline (machines by name); not stored. Error paths start at `drivetrain`. */
   buildInline(value: unknown): { dt: Drivetrain; doc: DrivetrainDoc; hash: string } {
-    const doc = parseDrivetrainDoc(value, 'drivetrain');
-    const hash = this.drivetrainContentHash({ doc, hash: contentHash(doc) });
-    return { dt: buildDrivetrain('inline', doc, (n) => this.machines.get(n)?.map), doc, hash };
+    let dt: Drivetrain;
+    try {
+      dt = buildDrivetrain('inline', value, (n) => this.machines.get(n)?.map);
+    } catch (err) {
+      throw err instanceof ModelError ? err.under('drivetrain') : err;
+    }
+    return { dt, doc: dt.doc, hash: this.drivetrainContentHash({ doc: dt.doc, hash: contentHash(dt.doc) }) };
   }
 
   putDrivetrain(name: string, value: unknown): Promise<{ created: boolean; entry: DrivetrainEntry }> {
     return this.serialized(async () => {
-      const doc = parseDrivetrainDoc(value);
-      buildDrivetrain(name, doc, (n) => this.machines.get(n)?.map);
-      await writeFileAtomic(documentPath(this.drivetrainDir, name), JSON.stringify(doc, null, 1) + '\n');
-      const prev = this.drivetrains.get(name);
-      const entry: DrivetrainEntry = { name, doc, origin: 'data', hash: contentHash(doc) };
-      if (prev) {
-        const shadow = prev.origin === 'maps' ? prev : prev.shadowed;
-        if (shadow) entry.shadowed = shadow;
-      }
-      this.drivetrains.set(name, entry);
-      this.built.delete(name);
-      return { created: !prev, entry };
+      const dt = buildDrivetrain(name, value, (n) => this.machines.get(n)?.map);
+      await writeFileAtomic(documentPath(this.drivetrainDir, name), JSON.stringify(dt.doc, null, 1) + '\n');
+      const created = !this.drivetrains.has(name);
+      const entry: DrivetrainEntry = { name, doc: dt.doc, origin: 'data', hash: contentHash(dt.doc) };
+      place(this.drivetrains, entry);
+      this.built.set(name, dt);
+      return { created, entry };
     });
   }
 
@@ -268,33 +273,13 @@ export class Registry {
       const entry = this.drivetrains.get(name);
       if (!entry) throw new ModelError('not-found', `no drivetrain named "${name}"`);
       if (entry.origin === 'maps') {
-        throw new ApiLikeError('read-only', `drivetrain "${name}" comes from MAPS_DIR; remove its file there to delete it`);
+        throw new ModelError('read-only', `drivetrain "${name}" comes from MAPS_DIR; remove its file there to delete it`);
       }
       await removeFileDurable(documentPath(this.drivetrainDir, name));
-      if (entry.shadowed) this.drivetrains.set(name, entry.shadowed);
-      else this.drivetrains.delete(name);
+      unplace(this.drivetrains, entry);
       this.built.delete(name);
     });
   }
-}
-
-/** Errors of the store that are not model problems (mapped by the API's error handler). */
-export class ApiLikeError extends Error {
-  constructor(
-    readonly code: 'read-only' | 'in-use',
-    message: string,
-  ) {
-    super(message);
-  }
-}
-
-export function parseDrivetrainDoc(value: unknown, base?: string): DrivetrainDoc {
-  const r = drivetrainSchema.safeParse(value);
-  if (!r.success) {
-    const issue = r.error.issues[0]!;
-    throw new ModelError('drivetrain-invalid', issue.message, fieldPath(issue.path, base) || undefined);
-  }
-  return r.data;
 }
 
 function problemOf(file: string, err: unknown): LoadProblem {
