@@ -55,6 +55,12 @@ export function answerCycle(dt: Drivetrain, body: CycleRequest) {
   };
 }
 
+/** Body limit and error codes shared by the routes that take a cycle request. */
+const CYCLE_ROUTE = {
+  bodyLimit: 16 * 1024 * 1024,
+  config: { bodyErrorCode: 'invalid-request', bodyErrorCodes: { vehicle: 'vehicle-invalid', cycle: 'cycle-invalid' } },
+} as const;
+
 export const cycleRoutes: FastifyPluginAsyncZod = async (app) => {
   app.get(
     '/cycles',
@@ -77,8 +83,7 @@ export const cycleRoutes: FastifyPluginAsyncZod = async (app) => {
   app.post(
     '/drivetrains/:name/cycles',
     {
-      bodyLimit: 16 * 1024 * 1024,
-      config: { bodyErrorCode: 'invalid-request', bodyErrorCodes: { vehicle: 'vehicle-invalid', cycle: 'cycle-invalid' } },
+      ...CYCLE_ROUTE,
       schema: {
         tags: ['cycles'],
         summary: 'Battery energy over a drive cycle: Wh, Wh/km, losses by component, modes, regeneration, unfollowed steps',
@@ -104,8 +109,7 @@ export const cycleRoutes: FastifyPluginAsyncZod = async (app) => {
   app.post(
     '/drivetrains/:name/cycles/plot.svg',
     {
-      bodyLimit: 16 * 1024 * 1024,
-      config: { bodyErrorCode: 'invalid-request', bodyErrorCodes: { vehicle: 'vehicle-invalid', cycle: 'cycle-invalid' } },
+      ...CYCLE_ROUTE,
       schema: {
         tags: ['cycles'],
         summary: 'SVG of a cycle run: speed trace with mode bands, battery power',
