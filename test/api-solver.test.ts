@@ -41,6 +41,14 @@ describe('drivetrains and operating points over HTTP', () => {
     expect(r.body.results[0].feasible).toBe(true);
   });
 
+  it('calls a launch beyond the limit motoring in either direction (power to the wheels at standstill)', async () => {
+    const r = await request(ctx.srv.url)
+      .post('/v1/drivetrains/van-axle/operating-points')
+      .send({ points: [{ wheelSpeedRpm: 0, wheelTorqueNm: 5000 }, { wheelSpeedRpm: 0, wheelTorqueNm: -5000 }] })
+      .expect(200);
+    expect(r.body.results.map((x: { reason: string }) => x.reason)).toEqual(['above-motoring-limit', 'above-motoring-limit']);
+  });
+
   it('leaves the alternatives out when asked, with the same optimum', async () => {
     const points = [{ wheelSpeedRpm: 400, wheelTorqueNm: 600 }, { wheelSpeedRpm: 800, wheelTorqueNm: -500 }];
     const full = await request(ctx.srv.url).post('/v1/drivetrains/van-axle/operating-points').send({ points }).expect(200);

@@ -8,7 +8,7 @@ import { fieldPath, ModelError } from '../problem.js';
 import { machineName } from '../machine/schema.js';
 import type { MachineMap } from '../machine/map.js';
 import { checkGeometry } from '../gearset/geometry.js';
-import { ringHeldRatio, sunHeldRatio } from '../gearset/planetary.js';
+import { regimeDivisor, ringHeldRatio, sunHeldRatio } from '../gearset/planetary.js';
 import { msToKph, radSToRpm } from '../units.js';
 import { MODES, type Mode } from './types.js';
 import { MODE_LOCKED, MODE_RING_HELD, MODE_SPLIT, MODE_SUN_HELD } from './modeIndex.js';
@@ -37,14 +37,14 @@ export const drivetrainSchema = z
         sunTeeth: z.number().int().min(1).describe('Sun teeth Zs'),
         ringTeeth: z.number().int().min(1).describe('Ring teeth Zr (k = Zr/Zs)'),
         planets: z.number().int().min(2).max(32).describe('Number of equally spaced planets N'),
-        baseEfficiency: z.number().gt(0).lte(1).describe('Basic efficiency η0 with the carrier held, 0..1 (typically 0.97–0.985)'),
+        baseEfficiency: z.number().min(0.5).lte(1).describe('Basic efficiency η0 with the carrier held, 0.5..1 (typically 0.97–0.985)'),
       })
       .strict()
       .describe('Simple planetary set: sun machine, ring machine, carrier to the final drive'),
     finalDrive: z
       .object({
         ratio: z.number().positive().describe('Carrier speed / wheel speed'),
-        efficiency: z.number().gt(0).lte(1).describe('Final-drive efficiency 0..1, applied in the direction of power flow'),
+        efficiency: z.number().min(0.5).lte(1).describe('Final-drive efficiency 0.5..1, applied in the direction of power flow'),
       })
       .strict(),
     wheelRadiusM: z.number().positive().describe('Dynamic rolling radius, m'),
@@ -69,8 +69,6 @@ export const drivetrainSchema = z
 
 export type DrivetrainDoc = z.output<typeof drivetrainSchema>;
 export type DrivetrainInput = z.input<typeof drivetrainSchema>;
-
-export { MODE_LOCKED, MODE_RING_HELD, MODE_SPLIT, MODE_SUN_HELD } from './modeIndex.js';
 
 export interface Drivetrain {
   readonly name: string;
@@ -186,8 +184,8 @@ export function buildDrivetrain(name: string, input: unknown, getMachine: (name:
     planets: g.planets,
     k: g.k,
     eta0,
-    cSunDelivers: 1 + g.k * eta0,
-    cRingDelivers: 1 + g.k / eta0,
+    cSunDelivers: regimeDivisor(g.k, eta0, true),
+    cRingDelivers: regimeDivisor(g.k, eta0, false),
     fdRatio: doc.finalDrive.ratio,
     fdEfficiency: doc.finalDrive.efficiency,
     wheelRadiusM: doc.wheelRadiusM,

@@ -32,13 +32,31 @@ function solveModes(dt: Drivetrain, mask: number, wheelRadS: number, wheelNm: nu
   return any;
 }
 
-function feasibleResult(dt: Drivetrain, p: WheelPoint, wheelRadS: number, electricNm: number, frictionNm: number, extraBinding?: string): PointResult {
+function feasibleResult(
+  dt: Drivetrain,
+  p: WheelPoint,
+  opts: SolveOptions,
+  wheelRadS: number,
+  electricNm: number,
+  frictionNm: number,
+  extraBinding?: string,
+): PointResult {
   const settings: ModeSetting[] = [];
-  for (let m = 0; m < MODES.length; m++) {
-    const c = dt.work.cand[m]!;
-    if (c.ok) settings.push(buildSetting(dt, m, c, wheelRadS, electricNm, frictionNm));
+  if (opts.alternatives === false) {
+    // Only the optimum: the candidate with the least battery power.
+    let best = -1;
+    for (let m = 0; m < MODES.length; m++) {
+      const c = dt.work.cand[m]!;
+      if (c.ok && (best < 0 || c.p < dt.work.cand[best]!.p)) best = m;
+    }
+    settings.push(buildSetting(dt, best, dt.work.cand[best]!, wheelRadS, electricNm, frictionNm));
+  } else {
+    for (let m = 0; m < MODES.length; m++) {
+      const c = dt.work.cand[m]!;
+      if (c.ok) settings.push(buildSetting(dt, m, c, wheelRadS, electricNm, frictionNm));
+    }
+    settings.sort((a, b) => a.batteryW - b.batteryW);
   }
-  settings.sort((a, b) => a.batteryW - b.batteryW);
   const best = settings[0]!;
   if (extraBinding && !best.binding.includes(extraBinding)) best.binding.push(extraBinding);
   return { wheelSpeedRpm: p.wheelSpeedRpm, wheelTorqueNm: p.wheelTorqueNm, feasible: true, ...best, alternatives: settings.slice(1) };
@@ -69,7 +87,7 @@ export function solvePoint(dt: Drivetrain, wheelSpeedRpm: number, wheelTorqueNm:
   const mask = modeMask(dt, opts.modes);
   if (mask === 0) return infeasible(point, 'no-mode-available', 0, 0);
   const wW = rpmToRadS(wheelSpeedRpm);
-  if (solveModes(dt, mask, wW, wheelTorqueNm)) return feasibleResult(dt, point, wW, wheelTorqueNm, 0);
+  if (solveModes(dt, mask, wW, wheelTorqueNm)) return feasibleResult(dt, point, opts, wW, wheelTorqueNm, 0);
 
   const wc = dt.fdRatio * wW;
   let turns = false;
@@ -84,15 +102,15 @@ export function solvePoint(dt: Drivetrain, wheelSpeedRpm: number, wheelTorqueNm:
   if (braking && !opts.strict) {
     const upper = Math.min(asked, machine);
     // The machines' own limit first (the request itself was tried above), then the battery cut.
-    if (upper < asked && solveModes(dt, mask, wW, sigma * upper)) return feasibleResult(dt, point, wW, sigma * upper, asked - upper);
+    if (upper < asked && solveModes(dt, mask, wW, sigma * upper)) return feasibleResult(dt, point, opts, wW, sigma * upper, asked - upper);
     const got = batteryLimitedWheel(dt, mask, wW, sigma, upper);
     if (got >= 0 && solveModes(dt, mask, wW, sigma * got)) {
-      return feasibleResult(dt, point, wW, sigma * got, asked - got, batteryLimitNear(dt));
+      return feasibleResult(dt, point, opts, wW, sigma * got, asked - got, batteryLimitNear(dt));
     }
   }
-  const dir = wW >= 0 ? 1 : -1;
+  // Power to the wheels (T·ω >= 0, standstill included) is motoring, as in the final drive.
   const reason: InfeasibleReason =
-    machineExceeded && !(braking && !opts.strict) ? (sigma === dir ? 'above-motoring-limit' : 'above-braking-limit') : 'battery-limit';
+    machineExceeded && !(braking && !opts.strict) ? (braking ? 'above-braking-limit' : 'above-motoring-limit') : 'battery-limit';
   const lim = wheelLimitsAt(dt, mask, wW, sigma, machine);
   return infeasible(point, reason, lim.maxMotoringWheelNm, lim.maxBrakingWheelNm);
 }

@@ -12,6 +12,7 @@
  */
 import { sunTorqueBand } from '../gearset/planetary.js';
 import type { Drivetrain } from './drivetrain.js';
+import { MODE_SPLIT } from './modeIndex.js';
 import { axisCell, cellWeight, envelopeAt, firstAbove, lastBelow, moveCell } from './machineEval.js';
 import { lossInCell, upperIndex } from '../machine/map.js';
 import { bestOnPiece, PIECE } from './piece.js';
@@ -128,7 +129,7 @@ function evalSplit(dt: Drivetrain, x: number, base: number, ts: number, tout: nu
   lo = mn[i]! + u * (mn[i + 1]! - mn[i]!);
   const rMax = wr < 0 ? -lo : hi;
   const rMin = wr < 0 ? -hi : lo;
-  const p = ts * x + tr * wr + ls + lr + dt.auxW + dt.deviceW[0]!;
+  const p = ts * x + tr * wr + ls + lr + dt.auxW + dt.deviceW[MODE_SPLIT]!;
   ev[o] = dt.work.sense * p;
   ev[o + 1] = sMax - ts;
   ev[o + 2] = ts - sMin;
@@ -139,9 +140,9 @@ function evalSplit(dt: Drivetrain, x: number, base: number, ts: number, tout: nu
 }
 
 /** Sun-torque range at Δ = 0 (N·m): the friction band intersected with both envelopes at ω_c. */
-export const BAND = new Float64Array(2);
+const BAND = new Float64Array(2);
 
-export function bandRange(dt: Drivetrain, wc: number, tout: number): void {
+function bandRange(dt: Drivetrain, wc: number, tout: number): void {
   sunTorqueBand(dt.k, dt.eta0, tout, BAND);
   const env = dt.work.env;
   envelopeAt(dt.sun, wc, env, 0);
@@ -226,7 +227,7 @@ export function solveSplit(dt: Drivetrain, wc: number, tout: number, out: Candid
   if (tout !== 0 && wc >= lo && wc <= hi) {
     bandRange(dt, wc, tout);
     const spare = dt.work.band;
-    if (solveShare(dt, wc, tout, BAND[0]!, BAND[1]!, dt.deviceW[0]!, spare) && sense * spare.p < best) {
+    if (solveShare(dt, wc, tout, BAND[0]!, BAND[1]!, dt.deviceW[MODE_SPLIT]!, spare) && sense * spare.p < best) {
       out.ok = true;
       out.p = spare.p;
       out.ws = wc;

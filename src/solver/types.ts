@@ -79,4 +79,6 @@ export interface SolveOptions {
   modes?: readonly Mode[];
   /** When true, braking beyond what the machines/battery absorb is infeasible instead of using friction brakes. */
   strict?: boolean;
+  /** When false, only the optimum is built and `alternatives` stays empty (default true). */
+  alternatives?: boolean;
 }

@@ -62,11 +62,3 @@ export function createWork(speedBreakpoints: number, torqueBreakpoints: number):
   };
 }
 
-export function copyCandidate(from: Candidate, to: Candidate): void {
-  to.ok = from.ok;
-  to.p = from.p;
-  to.ws = from.ws;
-  to.wr = from.wr;
-  to.ts = from.ts;
-  to.tr = from.tr;
-}

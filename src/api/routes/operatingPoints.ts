@@ -30,12 +30,11 @@ export const operatingPointRoutes: FastifyPluginAsyncZod = async (app) => {
       throw new ApiError('too-large', `${points.length} points in one request; at most ${maxPoints} are allowed — split the batch`, 'points');
     }
     app.metrics.solverPoints.inc(points.length);
-    const opts = modes ? { modes, strict } : { strict };
+    const opts = modes ? { modes, strict, alternatives } : { strict, alternatives };
     const results: PointResult[] = [];
     for (let i = 0; i < points.length; i += CHUNK_POINTS) {
       if (i > 0) await yieldToEventLoop();
       const chunk = solvePoints(dt, i === 0 && points.length <= CHUNK_POINTS ? points : points.slice(i, i + CHUNK_POINTS), opts);
-      if (!alternatives) for (const r of chunk) r.alternatives = [];
       for (const r of chunk) results.push(r);
     }
     return { results };
