@@ -15,6 +15,10 @@ describe('bearer-token auth', () => {
     expect(wrong.body.error.code).toBe('unauthorized');
     await request(ctx.srv.url).get('/v1/machines').set('authorization', 'Bearer s3cret-token').expect(200);
     await request(ctx.srv.url).put('/v1/machines/x').send({}).expect(401);
+    // Percent-encoded paths reach the same routes and need the token too.
+    await request(ctx.srv.url).get('/%761/machines').expect(401);
+    await request(ctx.srv.url).get('/v%31/drivetrains').expect(401);
+    await request(ctx.srv.url).put('/%761/machines/evil').send({}).expect(401);
   });
 });
 

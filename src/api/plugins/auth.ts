@@ -16,7 +16,9 @@ export const authPlugin = fp(async (app: FastifyInstance, opts: { token: string 
   if (!opts.token) return;
   const expected = digest(opts.token);
   app.addHook('onRequest', async (request, reply) => {
-    if (!request.url.startsWith('/v1/') && request.url !== '/v1') return;
+    // Decide on the matched route, not the raw URL: the router decodes the path (`/%761/…`).
+    const route = request.routeOptions.url;
+    if (route !== undefined && !route.startsWith('/v1/')) return;
     const header = request.headers.authorization ?? '';
     const m = /^Bearer\s+(.+)$/i.exec(header);
     const ok = m !== null && timingSafeEqual(digest(m[1]!.trim()), expected);
