@@ -1,6 +1,7 @@
 import request from 'supertest';
 import { describe, expect, it } from 'vitest';
 import { createJobLimiter } from '../src/api/plugins/jobs.js';
+import { BodyCache } from '../src/api/routes/common.js';
 import { useTestServer } from './support/server.js';
 
 describe('bearer-token auth', () => {
@@ -81,5 +82,22 @@ describe('load shedding', () => {
     expect(r.headers['retry-after']).toBe('5');
     await new Promise((resolve) => setTimeout(resolve, 2500));
     await request(ctx.srv.url).get('/v1/machines').expect(200);
+  });
+});
+
+describe('response cache', () => {
+  it('is bounded by total size and keeps no body above a quarter of the bound', () => {
+    const cache = new BodyCache(100);
+    cache.set('a', { body: 'x'.repeat(20), contentType: 't' });
+    cache.set('b', { body: 'x'.repeat(20), contentType: 't' });
+    cache.set('big', { body: 'x'.repeat(26), contentType: 't' });
+    expect(cache.get('big')).toBeUndefined();
+    cache.get('a'); // a is now the most recent
+    for (const k of ['c', 'd', 'e']) cache.set(k, { body: 'x'.repeat(20), contentType: 't' });
+    // 5 × 20 = 100 fits; one more evicts the least recent (b).
+    cache.set('f', { body: 'x'.repeat(20), contentType: 't' });
+    expect(cache.get('b')).toBeUndefined();
+    expect(cache.get('a')?.body).toHaveLength(20);
+    expect(cache.get('f')?.body).toHaveLength(20);
   });
 });

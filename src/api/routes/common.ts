@@ -11,10 +11,14 @@ export function drivetrainOr404(app: FastifyInstance, name: string): { dt: Drive
   return { dt, hash: app.registry.drivetrainContentHash(entry) };
 }
 
-/** A bounded least-recently-used cache of rendered bodies keyed by content hash. */
+/**
+ * A least-recently-used cache of rendered bodies keyed by content hash, bounded by total size
+ * (characters); a body larger than a quarter of the bound is not kept.
+ */
 export class BodyCache {
   private readonly map = new Map<string, { body: string; contentType: string }>();
-  constructor(private readonly capacity: number) {}
+  private size = 0;
+  constructor(private readonly maxChars: number) {}
   get(key: string): { body: string; contentType: string } | undefined {
     const hit = this.map.get(key);
     if (hit) {
@@ -24,11 +28,24 @@ export class BodyCache {
     return hit;
   }
   set(key: string, value: { body: string; contentType: string }): void {
-    this.map.delete(key);
+    if (value.body.length > this.maxChars / 4) return;
+    const old = this.map.get(key);
+    if (old) {
+      this.size -= old.body.length;
+      this.map.delete(key);
+    }
     this.map.set(key, value);
-    while (this.map.size > this.capacity) this.map.delete(this.map.keys().next().value!);
+    this.size += value.body.length;
+    for (const [k, v] of this.map) {
+      if (this.size <= this.maxChars) break;
+      this.map.delete(k);
+      this.size -= v.body.length;
+    }
   }
 }
+
+/** Size of each route's body cache, characters. */
+export const BODY_CACHE_CHARS = 64 * 1024 * 1024;
 
 /** Parses `from:to:steps` or a comma-separated list from a query string. */
 export function axisFromQuery(text: string | undefined, field: string, fallback: { from: number; to: number; steps: number }): { from: number; to: number; steps: number } | number[] {

@@ -9,12 +9,12 @@ import { MODES } from '../../solver/types.js';
 import { contentHash } from '../../store/hash.js';
 import { ApiError } from '../errors.js';
 import { errorBodySchema, nameParams } from '../schemas.js';
-import { axisFromQuery, BodyCache, drivetrainOr404 } from './common.js';
+import { axisFromQuery, BODY_CACHE_CHARS, BodyCache, drivetrainOr404 } from './common.js';
 
 const SVG = 'image/svg+xml; charset=utf-8';
 
 export const plotRoutes: FastifyPluginAsyncZod = async (app) => {
-  const cache = new BodyCache(32);
+  const cache = new BodyCache(BODY_CACHE_CHARS);
 
   app.get(
     '/drivetrains/:name/plot.svg',

@@ -11,12 +11,12 @@ import { tableToJson } from '../../report/tableJson.js';
 import { resolveTableSpec, tableSpecSchema } from '../../solver/tableSpec.js';
 import { contentHash } from '../../store/hash.js';
 import { errorBodySchema, nameParams } from '../schemas.js';
-import { BodyCache, drivetrainOr404 } from './common.js';
+import { BODY_CACHE_CHARS, BodyCache, drivetrainOr404 } from './common.js';
 
 const CONTENT_TYPES = { json: 'application/json; charset=utf-8', csv: 'text/csv; charset=utf-8', c: 'text/x-c; charset=utf-8' } as const;
 
 export const tableRoutes: FastifyPluginAsyncZod = async (app) => {
-  const cache = new BodyCache(32);
+  const cache = new BodyCache(BODY_CACHE_CHARS);
 
   app.post(
     '/drivetrains/:name/tables',
