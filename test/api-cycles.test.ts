@@ -70,4 +70,18 @@ describe('drive cycles over HTTP', () => {
     expect(svg).toMatch(/class="mode-band"/);
     expect(svg).toContain('Battery power (kW)');
   });
+
+  it('refuses malformed cycle names, absurd times and oversized jobs with their codes', async () => {
+    const name = await request(ctx.srv.url).post('/v1/drivetrains/van-axle/cycles').send({ vehicle: van, cycle: { csv: 'timeS,speedKph\n0,0\n1,1', name: { a: 1 } } }).expect(422);
+    expect([name.body.error.code, name.body.error.path]).toEqual(['cycle-invalid', 'cycle.name']);
+    const long = await request(ctx.srv.url).post('/v1/drivetrains/van-axle/cycles').send({ vehicle: van, cycle: { name: 'x'.repeat(300), timeS: [0, 1], speedKph: [0, 1] } }).expect(422);
+    expect(long.body.error.code).toBe('cycle-invalid');
+    const huge = await request(ctx.srv.url).post('/v1/drivetrains/van-axle/cycles').send({ vehicle: van, cycle: { timeS: [-1e308, 1e308], speedKph: [0, 0] } }).expect(422);
+    expect([huge.body.error.code, huge.body.error.path]).toEqual(['cycle-invalid', 'cycle.timeS[0]']);
+    const n = 30_001;
+    const timeS = Array.from({ length: n }, (_, i) => i);
+    const speedKph = timeS.map((t) => 40 + 20 * Math.sin(t / 30));
+    const big = await request(ctx.srv.url).post('/v1/drivetrains/van-axle/cycles').send({ vehicle: van, cycle: { timeS, speedKph }, compare: true }).expect(413);
+    expect([big.body.error.code, big.body.error.path]).toEqual(['too-large', 'cycle']);
+  });
 });

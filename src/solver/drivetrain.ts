@@ -17,11 +17,12 @@ import { createWork, type SolverWork } from './work.js';
 
 const device = z
   .object({
-    engagedW: z.number().min(0).describe('DC power drawn while engaged, W'),
-    releasedW: z.number().min(0).describe('DC power drawn while released, W (a spring-applied brake draws power to stay open)'),
+    engagedW: z.number().min(0).max(1e5).describe('DC power drawn while engaged, W (<= 100 kW)'),
+    releasedW: z.number().min(0).max(1e5).describe('DC power drawn while released, W (a spring-applied brake draws power to stay open; <= 100 kW)'),
     maxTorqueNm: z
       .number()
       .positive()
+      .max(1e6)
       .optional()
       .describe('Torque capacity, N·m: for a brake the held member reaction, for the lock-up clutch |T_s − T_out·Zs/(Zs+Zr)|; no limit when absent'),
   })
@@ -34,8 +35,8 @@ export const drivetrainSchema = z
     ringMachine: machineName.describe('Name of the machine map on the ring gear'),
     gearset: z
       .object({
-        sunTeeth: z.number().int().min(1).describe('Sun teeth Zs'),
-        ringTeeth: z.number().int().min(1).describe('Ring teeth Zr (k = Zr/Zs)'),
+        sunTeeth: z.number().int().min(1).max(10_000).describe('Sun teeth Zs'),
+        ringTeeth: z.number().int().min(1).max(10_000).describe('Ring teeth Zr (k = Zr/Zs)'),
         planets: z.number().int().min(2).max(32).describe('Number of equally spaced planets N'),
         baseEfficiency: z.number().min(0.5).lte(1).describe('Basic efficiency η0 with the carrier held, 0.5..1 (typically 0.97–0.985)'),
       })
@@ -43,11 +44,11 @@ export const drivetrainSchema = z
       .describe('Simple planetary set: sun machine, ring machine, carrier to the final drive'),
     finalDrive: z
       .object({
-        ratio: z.number().positive().describe('Carrier speed / wheel speed'),
+        ratio: z.number().positive().max(1000).describe('Carrier speed / wheel speed (<= 1000)'),
         efficiency: z.number().min(0.5).lte(1).describe('Final-drive efficiency 0.5..1, applied in the direction of power flow'),
       })
       .strict(),
-    wheelRadiusM: z.number().positive().describe('Dynamic rolling radius, m'),
+    wheelRadiusM: z.number().min(0.01).max(5).describe('Dynamic rolling radius, m (0.01..5)'),
     devices: z
       .object({
         sunBrake: device.optional().describe('Brake that holds the sun (enables sun-held mode)'),
@@ -59,11 +60,11 @@ export const drivetrainSchema = z
       .describe('Optional hold devices'),
     battery: z
       .object({
-        maxDischargeW: z.number().positive().describe('Largest battery discharge power, W'),
-        maxChargeW: z.number().positive().describe('Largest battery charge power (a magnitude), W'),
+        maxDischargeW: z.number().positive().max(1e8).describe('Largest battery discharge power, W (<= 100 MW)'),
+        maxChargeW: z.number().positive().max(1e8).describe('Largest battery charge power (a magnitude), W (<= 100 MW)'),
       })
       .strict(),
-    auxiliaryW: z.number().min(0).default(0).describe('Constant auxiliary DC load, W'),
+    auxiliaryW: z.number().min(0).max(1e6).default(0).describe('Constant auxiliary DC load, W (<= 1 MW)'),
   })
   .strict();
 

@@ -12,6 +12,8 @@ import { BUILTIN_CYCLE_IDS, getBuiltinCycle } from './cycles.js';
 export const MAX_CYCLE_SAMPLES = 100_000;
 /** Largest acceleration magnitude accepted between two samples, m/s² (about 1 g; beyond any road vehicle's traction). */
 export const MAX_CYCLE_ACCEL_MS2 = 10;
+/** Largest time stamp magnitude accepted, s (about 31 years; keeps every step duration finite). */
+export const MAX_CYCLE_TIME_S = 1e9;
 /** Largest grade magnitude accepted, % (45°). */
 export const MAX_GRADE_PCT = 100;
 /** Largest CSV cycle text accepted, characters. */
@@ -94,7 +96,9 @@ export function validateCycleTrace(
   for (let i = 0; i < n; i++) {
     const ti = trace.timeS[i]!;
     const vi = trace.speedKph[i]!;
-    if (typeof ti !== 'number' || !Number.isFinite(ti)) cycleFail(`timeS[${i}] must be a finite number`, p('timeS', i));
+    if (typeof ti !== 'number' || !Number.isFinite(ti) || Math.abs(ti) > MAX_CYCLE_TIME_S) {
+      cycleFail(`timeS[${i}] must be a finite number of seconds within ±${MAX_CYCLE_TIME_S}`, p('timeS', i));
+    }
     if (typeof vi !== 'number' || !Number.isFinite(vi)) cycleFail(`speedKph[${i}] must be a finite number`, p('speedKph', i));
     if (vi < 0) cycleFail(`speedKph[${i}] = ${vi}; speeds must be >= 0`, p('speedKph', i));
     if (i > 0 && !(ti > t[i - 1]!)) cycleFail(`timeS must be strictly increasing: timeS[${i}] = ${ti} follows ${t[i - 1]}`, p('timeS', i));
@@ -189,7 +193,8 @@ export function parseCycleInput(input: unknown, base = 'cycle'): Cycle {
   if (!r.success) {
     const issue = r.error.issues[0]!;
     const path = fieldPath(issue.path, base);
-    const tooBig = issue.code === 'too_big';
+    // Only too many samples is "too large"; a long name or a big value is simply invalid.
+    const tooBig = issue.code === 'too_big' && (issue as { origin?: string }).origin === 'array';
     throw new ModelError(tooBig ? 'too-large' : 'cycle-invalid', `${path}: ${issue.message}`, path);
   }
   return resolveCycle(r.data as CycleInput, base);

@@ -9,10 +9,15 @@ import { parseCycleCsv, parseCycleInput, vehicleSchema, type Cycle } from '../..
 import { plotCycle } from '../../report/svg/plotCycle.js';
 import type { Drivetrain } from '../../solver/drivetrain.js';
 import type { Mode } from '../../solver/types.js';
+import { fieldPath, ModelError } from '../../problem.js';
+import { ApiError } from '../errors.js';
 import { errorBodySchema, nameParams } from '../schemas.js';
 import { drivetrainOr404 } from './common.js';
 import { cycleAnswerSchema } from './cycleSchemas.js';
 import { modeSchema } from './solverSchemas.js';
+
+/** A cycle given as CSV text (columns timeS,speedKph[,gradePct]). */
+const csvCycleSchema = z.object({ csv: z.string(), name: z.string().max(200).optional() }).strict();
 
 export const cycleRequestSchema = z
   .object({
@@ -31,15 +36,36 @@ export const cycleRequestSchema = z
 export type CycleRequest = z.output<typeof cycleRequestSchema>;
 
 export function resolveCycleBody(cycle: unknown): Cycle {
-  if (typeof cycle === 'object' && cycle !== null && 'csv' in cycle && typeof (cycle as { csv: unknown }).csv === 'string') {
-    return parseCycleCsv((cycle as { csv: string }).csv, (cycle as { name?: string }).name ?? 'csv', 'cycle');
+  if (typeof cycle === 'object' && cycle !== null && 'csv' in cycle) {
+    const r = csvCycleSchema.safeParse(cycle);
+    if (!r.success) {
+      const issue = r.error.issues[0]!;
+      throw new ModelError('cycle-invalid', issue.message, fieldPath(issue.path, 'cycle'));
+    }
+    return parseCycleCsv(r.data.csv, r.data.name ?? 'csv', 'cycle');
   }
   return parseCycleInput(cycle, 'cycle');
 }
 
+/**
+ * Most cycle steps one request may solve, counting every run it asks for (the cycle, the four
+ * layouts of a comparison, the bound). Cycles run on the event loop, so this keeps a request to a
+ * few seconds; longer jobs belong to the command line (`episplit cycle`).
+ */
+export const MAX_CYCLE_WORK_STEPS = 100_000;
+
 /** Runs what a cycle request asks for; plain objects only (typed arrays removed). */
 export function answerCycle(dt: Drivetrain, body: CycleRequest) {
   const cycle = resolveCycleBody(body.cycle);
+  const steps = cycle.timeS.length - 1;
+  const runs = 1 + (body.compare ? 4 : 0) + (body.switchCostsWh ? 1 : 0);
+  if (steps * runs > MAX_CYCLE_WORK_STEPS) {
+    throw new ApiError(
+      'too-large',
+      `${steps} steps × ${runs} runs exceed the ${MAX_CYCLE_WORK_STEPS} cycle steps one request may solve; drop compare or the bounds, or use the command line`,
+      'cycle',
+    );
+  }
   const solve = body.modes ? { modes: body.modes as Mode[] } : {};
   const result: CycleResult = runCycle(dt, body.vehicle, cycle, {
     solve,
@@ -121,7 +147,7 @@ export const cycleRoutes: FastifyPluginAsyncZod = async (app) => {
     async (req, reply) => {
       const { dt } = drivetrainOr404(app, req.params.name);
       const svg = await app.jobs.run('cycle', () => {
-        const { result } = answerCycle(dt, { ...req.body, compare: false, series: true });
+        const { result } = answerCycle(dt, { ...req.body, compare: false, switchCostsWh: undefined, series: true });
         return plotCycle(result, { title: `${dt.name}: ${result.cycle}` });
       });
       return reply.type('image/svg+xml; charset=utf-8').send(svg);
