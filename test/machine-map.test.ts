@@ -67,6 +67,26 @@ describe('canonical map: bilinear loss interpolation', () => {
     expect(map.provenance.zeroSpeedLossChangeW).toBeGreaterThan(0);
   });
 
+  it('takes the smaller zero-speed envelope magnitude, never more than the supplier limit', () => {
+    const g = sampleGrid();
+    const asym = buildMachineMap('z', { ...g, maxTorqueNm: [100, 100, 80, 40], minTorqueNm: [-60, -100, -80, -40] }, prov);
+    expect(asym.maxTorqueNm[0]).toBe(60);
+    expect(asym.minTorqueNm[0]).toBe(-60);
+    expect(asym.provenance.zeroSpeedTorqueChangeNm).toBe(40);
+  });
+
+  it('does not add mirror nodes within rounding of existing ones', () => {
+    const span = 85.17841198365556;
+    const torqueNm = Array.from({ length: 41 }, (_, j) => -span + (2 * span * j) / 40);
+    const speedRpm = [0, 1000, 2000];
+    const m = buildMachineMap(
+      'r',
+      { speedRpm, torqueNm, lossW: speedRpm.map(() => torqueNm.map((t) => 100 + t * t)), maxTorqueNm: [80, 80, 80], minTorqueNm: [-80, -80, -80], maxSpeedRpm: 2000, reverse: true },
+      prov,
+    );
+    expect(m.nTorque).toBe(41);
+  });
+
   it('refuses points outside the envelope or above max speed (no extrapolation)', () => {
     expect(Number.isNaN(lossAt(map, rpmToRadS(5001), 0))).toBe(true);
     expect(Number.isNaN(lossAt(map, rpmToRadS(5000), 41))).toBe(true);

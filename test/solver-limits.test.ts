@@ -20,7 +20,7 @@ import { checkSetting, refCarrierTorque, refModel, refSplitRange } from './suppo
 const RPM = Math.PI / 30;
 const dt = makeDrivetrain();
 const ref = refModel(dt);
-const bigBattery = makeDrivetrain({ ...BASE_DOC, battery: { maxDischargeW: 1e9, maxChargeW: 1e9 } });
+const bigBattery = makeDrivetrain({ ...BASE_DOC, battery: { maxDischargeW: 1e8, maxChargeW: 1e8 } });
 
 function best(r: PointResult): ModeSetting {
   expect(r.feasible).toBe(true);

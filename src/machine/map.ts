@@ -90,7 +90,7 @@ export const MAX_LOSS_W = 1e9;
 
 /**
  * Validates a grid and builds the canonical map. Makes the zero-speed column symmetric in torque
- * (averaging loss(0, τ) and loss(0, −τ), and the two envelope magnitudes) so the reverse mirror is
+ * (averaging loss(0, τ) and loss(0, −τ); the envelope takes the smaller of its two magnitudes) so the reverse mirror is
  * continuous; to do that exactly the torque axis gains the mirror image of each node inside its
  * symmetric span (values linearly interpolated along torque, which leaves the bilinear surface of
  * every other speed unchanged).
@@ -136,9 +136,19 @@ export function buildMachineMap(name: string, g: GridInput, provenance: MapProve
 
   // Torque axis gains mirrored nodes inside [−a, a], a = min(−t0, tN), so symmetry is exact.
   const a = Math.min(-t0, tN);
-  const axis = new Set<number>(g.torqueNm);
-  if (a > 0) for (const t of g.torqueNm) if (Math.abs(t) <= a) axis.add(-t === 0 ? 0 : -t);
-  const torque = Float64Array.from([...axis].sort((x, y) => x - y));
+  // A mirror image within rounding of an existing node is that node (axes built as
+  // −span + 2·span·j/(n−1) are symmetric only to the last bit).
+  const snap = 1e-9 * (tN - t0);
+  const given = [...g.torqueNm];
+  const merged = [...given];
+  if (a > 0) {
+    for (const t of given) {
+      if (Math.abs(t) > a) continue;
+      const m = -t;
+      if (!given.some((x) => Math.abs(x - m) <= snap)) merged.push(m === 0 ? 0 : m);
+    }
+  }
+  const torque = Float64Array.from(merged.sort((x, y) => x - y));
   const nT = torque.length;
   const loss = new Float64Array(nS * nT);
   for (let i = 0; i < nS; i++) {
@@ -161,7 +171,9 @@ export function buildMachineMap(name: string, g: GridInput, provenance: MapProve
       loss[j] = avg;
     }
   }
-  const m0 = 0.5 * (maxT[0]! - minT[0]!);
+  // The smaller magnitude, never the mean: the envelope must not promise torque the supplier's
+  // limit does not give.
+  const m0 = Math.min(maxT[0]!, -minT[0]!);
   const torqueChange = Math.max(Math.abs(m0 - maxT[0]!), Math.abs(-m0 - minT[0]!));
   maxT[0] = m0;
   minT[0] = -m0;
@@ -174,7 +186,7 @@ export function buildMachineMap(name: string, g: GridInput, provenance: MapProve
   };
   if (lossChange > 0 || torqueChange > 0) {
     prov.notes.push(
-      `zero-speed column averaged with its mirror so reverse rotation is continuous: loss moved by up to ${round(lossChange)} W, envelope by ${round(torqueChange)} N·m`,
+      `zero-speed column made symmetric so reverse rotation is continuous: loss averaged with its mirror (moved by up to ${round(lossChange)} W), envelope cut to the smaller magnitude (by ${round(torqueChange)} N·m)`,
     );
   }
   if (nT > g.torqueNm.length) {
