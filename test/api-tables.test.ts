@@ -11,6 +11,7 @@ describe('tables and plots over HTTP', () => {
   it('CSV cells equal the single-point answers and identical requests hit the cache with an ETag', async () => {
     const r = await request(ctx.srv.url).post('/v1/drivetrains/van-axle/tables').send({ ...spec, format: 'csv' }).expect(200);
     expect(r.headers['content-type']).toMatch(/text\/csv/);
+    expect(r.text.split('\n')[0]).toMatch(/^# .*certifies nothing/);
     const etag = r.headers.etag as string;
     expect(etag).toMatch(/^"[0-9a-f]{64}"$/);
     const cells = parseTableCsv(r.text);

@@ -34,7 +34,14 @@ function findCell(pred: (k: number) => boolean): number {
 
 describe('table CSV', () => {
   const csv = tableToCsv(table);
-  const lines = csv.split('\n');
+  // The data lines; `#` comment lines (caution, hash, parameters) come first.
+  const lines = csv.split('\n').filter((l) => !l.startsWith('#'));
+
+  it('opens with the caution and the generation record as comment lines', () => {
+    const comments = csv.split('\n').filter((l) => l.startsWith('#'));
+    expect(comments.join(' ')).toMatch(/certifies nothing/);
+    expect(comments.join(' ')).toContain('parameters');
+  });
 
   it('has the documented header and one row per cell', () => {
     expect(lines[0]).toBe(

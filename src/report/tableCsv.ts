@@ -6,6 +6,7 @@
  */
 import { parse } from 'csv-parse/sync';
 import { ModelError } from '../problem.js';
+import { TABLE_CAUTION } from './caution.js';
 import { CELL_FLOAT_FIELDS, tableCell, type LookupTable, type TableCell } from '../solver/tableResult.js';
 import { MODES, type Mode } from '../solver/types.js';
 
@@ -28,6 +29,10 @@ function row(c: TableCell): string {
 
 /** Lines of the CSV (each with its trailing LF), for streaming large tables. */
 export function* tableCsvLines(t: LookupTable): Generator<string> {
+  // Comment lines first (readers skip `#` lines): the caution and what the table was made from.
+  yield `# ${TABLE_CAUTION}\n`;
+  yield `# drivetrain ${t.drivetrain}; content hash ${t.hash ?? 'none'}; parameters ${JSON.stringify(t.parameters)}\n`;
+  yield `# units: wheel speed rpm, torques N·m, speeds rpm, battery power W (discharge > 0), efficiency 0..1; empty = not applicable\n`;
   yield `${TABLE_CSV_COLUMNS.join(',')}\n`;
   for (let i = 0; i < t.nSpeed; i++) {
     for (let j = 0; j < t.nTorque; j++) yield `${row(tableCell(t, i, j))}\n`;
@@ -56,7 +61,12 @@ function parseNum(s: string, path: string, nullable: boolean): number | null {
 
 /** Reads CSV written by {@link tableToCsv} back into cells (checks the header and every field). */
 export function parseTableCsv(text: string): TableCell[] {
-  const records = parse(text, { relax_column_count: false, skip_empty_lines: true }) as string[][];
+  let records: string[][];
+  try {
+    records = parse(text, { relax_column_count: false, skip_empty_lines: true, comment: '#' }) as string[][];
+  } catch (err) {
+    fail(`the CSV cannot be read: ${(err as Error).message}`, 'csv');
+  }
   if (records.length === 0) fail('the CSV is empty', 'header');
   const header = records[0]!;
   if (header.join(',') !== TABLE_CSV_COLUMNS.join(',')) fail(`header must be ${TABLE_CSV_COLUMNS.join(',')}`, 'header');

@@ -41,22 +41,14 @@ function feasibleResult(
   frictionNm: number,
   extraBinding?: string,
 ): PointResult {
-  const settings: ModeSetting[] = [];
-  if (opts.alternatives === false) {
-    // Only the optimum: the candidate with the least battery power.
-    let best = -1;
-    for (let m = 0; m < MODES.length; m++) {
-      const c = dt.work.cand[m]!;
-      if (c.ok && (best < 0 || c.p < dt.work.cand[best]!.p)) best = m;
-    }
-    settings.push(buildSetting(dt, best, dt.work.cand[best]!, wheelRadS, electricNm, frictionNm));
-  } else {
-    for (let m = 0; m < MODES.length; m++) {
-      const c = dt.work.cand[m]!;
-      if (c.ok) settings.push(buildSetting(dt, m, c, wheelRadS, electricNm, frictionNm));
-    }
-    settings.sort((a, b) => a.batteryW - b.batteryW);
-  }
+  // Modes ranked by the optimiser's own battery power (ties: mode order), so the lean answer and
+  // the full one always name the same optimum.
+  const cand = dt.work.cand;
+  const order: number[] = [];
+  for (let m = 0; m < MODES.length; m++) if (cand[m]!.ok) order.push(m);
+  order.sort((a, b) => cand[a]!.p - cand[b]!.p || a - b);
+  if (opts.alternatives === false) order.length = 1;
+  const settings: ModeSetting[] = order.map((m) => buildSetting(dt, m, cand[m]!, wheelRadS, electricNm, frictionNm));
   const best = settings[0]!;
   if (extraBinding && !best.binding.includes(extraBinding)) best.binding.push(extraBinding);
   return { wheelSpeedRpm: p.wheelSpeedRpm, wheelTorqueNm: p.wheelTorqueNm, feasible: true, ...best, alternatives: settings.slice(1) };

@@ -74,8 +74,9 @@ function writeSetting(s: ModeSetting | PointResult, out: Float64Array, o: number
   out[o + 6] = s.frictionBrakeNm!;
 }
 
-export function solveOptionsOf(job: { modes?: Mode[]; strict: boolean }): SolveOptions {
-  const opts: SolveOptions = { strict: job.strict };
+export function solveOptionsOf(job: { modes?: Mode[]; strict: boolean; modeSwitchMarginW?: number }): SolveOptions {
+  // Other modes' settings are only needed when the mode-switch margin may choose them.
+  const opts: SolveOptions = { strict: job.strict, alternatives: (job.modeSwitchMarginW ?? 0) > 0 };
   if (job.modes) opts.modes = job.modes;
   return opts;
 }
