@@ -13,7 +13,7 @@ export interface Config {
   bodyLimitBytes: number;
   /** Concurrent table/cycle/sweep jobs before the service answers 429. */
   maxJobs: number;
-  /** Longest a request may take, ms (0: no limit). */
+  /** Longest a client may take to send a whole request, ms (0: no limit); handlers are bounded by the job cap and work limits instead. */
   requestTimeoutMs: number;
   /** Event-loop delay above which the service sheds load with 503, ms (0: off). */
   maxEventLoopDelayMs: number;

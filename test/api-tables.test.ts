@@ -42,10 +42,22 @@ describe('tables and plots over HTTP', () => {
 
   it('builds a large table on the worker pool while /health keeps answering', async () => {
     const big = { speedRpm: { from: 0, to: 1600, steps: 81 }, torqueNm: { from: -2500, to: 2500, steps: 81 }, format: 'csv' };
-    const pending = request(ctx.srv.url).post('/v1/drivetrains/van-axle/tables').send(big);
+    // fetch sends at once (a supertest request would wait for its await).
+    let tableDone = false;
+    const pending = fetch(`${ctx.srv.url}/v1/drivetrains/van-axle/tables`, {
+      method: 'POST',
+      headers: { 'content-type': 'application/json' },
+      body: JSON.stringify(big),
+    }).then(async (res) => {
+      tableDone = true;
+      return { status: res.status, text: await res.text() };
+    });
+    await new Promise((resolve) => setTimeout(resolve, 50));
     const health = await request(ctx.srv.url).get('/health').expect(200);
     expect(health.body.status).toBe('ok');
-    const r = await pending.expect(200);
+    expect(tableDone).toBe(false); // answered while the table was still being built
+    const r = await pending;
+    expect(r.status).toBe(200);
     expect(parseTableCsv(r.text)).toHaveLength(81 * 81);
   });
 
@@ -70,5 +82,7 @@ describe('tables and plots over HTTP', () => {
     expect(await m.text()).toContain('id="envelope"');
     const bad = await request(ctx.srv.url).get('/v1/drivetrains/van-axle/plot.svg?speedRpm=abc').expect(400);
     expect(bad.body.error.path).toBe('speedRpm');
+    const blank = await request(ctx.srv.url).get('/v1/drivetrains/van-axle/plot.svg?speedRpm=,800').expect(400);
+    expect([blank.body.error.code, blank.body.error.path]).toEqual(['invalid-request', 'speedRpm']);
   });
 });

@@ -40,7 +40,8 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
     bodyLimit: config.bodyLimitBytes,
     requestIdHeader: 'x-request-id',
     genReqId: () => randomUUID(),
-    return503OnClosing: true,
+    // While closing, new requests get the catalogue's 503 from the hook below.
+    return503OnClosing: false,
     requestTimeout: config.requestTimeoutMs,
     routerOptions: { ignoreTrailingSlash: true },
     // Malformed URLs and over-long path parameters are refused by the router before the error
@@ -59,6 +60,11 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
   let closing = false;
   app.addHook('preClose', async () => {
     closing = true;
+  });
+  app.addHook('onRequest', async (_request, reply) => {
+    if (!closing) return;
+    reply.header('connection', 'close').header('retry-after', '5');
+    return sendError(reply, 'overloaded', 'the service is shutting down; retry on another instance or after it restarts');
   });
   app.addHook('onSend', async (request, reply) => {
     reply.header('x-request-id', request.id);

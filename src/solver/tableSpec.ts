@@ -130,3 +130,25 @@ export function resolveTableSpec(input: TableSpecInput | TableSpec, maxCells: nu
   if (spec.modes) out.modes = [...new Set(spec.modes)];
   return out;
 }
+
+/**
+ * An axis written as text, for query strings and the command line: `from:to:steps` or a
+ * comma-separated list of numbers. Shape only (ordering and size are checked by
+ * {@link resolveTableSpec}); an empty entry or a non-number is `invalid-request` at `field`.
+ */
+export function parseAxisText(text: string, field: string): { from: number; to: number; steps: number } | number[] {
+  const num = (s: string): number => (s.trim() === '' ? Number.NaN : Number(s));
+  const range = /^\s*([^:]+):([^:]+):([^:]+)$/.exec(text);
+  if (range) {
+    const [from, to, steps] = [num(range[1]!), num(range[2]!), num(range[3]!)];
+    if (!Number.isFinite(from) || !Number.isFinite(to) || !Number.isInteger(steps)) {
+      throw new ModelError('invalid-request', `${field} "${text}": expected from:to:steps with numbers and a whole step count`, field);
+    }
+    return { from, to, steps };
+  }
+  const list = text.split(',').map(num);
+  if (list.some((v) => !Number.isFinite(v))) {
+    throw new ModelError('invalid-request', `${field} "${text}": expected from:to:steps or a comma-separated list of numbers (no empty entries)`, field);
+  }
+  return list;
+}

@@ -1,6 +1,7 @@
 /** Small helpers shared by routes. */
 import type { FastifyInstance } from 'fastify';
 import type { Drivetrain } from '../../solver/drivetrain.js';
+import { parseAxisText } from '../../solver/tableSpec.js';
 import { ApiError } from '../errors.js';
 
 /** The built drivetrain and its content hash (document + machines), or a 404. */
@@ -47,14 +48,7 @@ export class BodyCache {
 /** Size of each route's body cache, characters. */
 export const BODY_CACHE_CHARS = 64 * 1024 * 1024;
 
-/** Parses `from:to:steps` or a comma-separated list from a query string. */
+/** An axis from the query string (see parseAxisText), or the fallback when absent. */
 export function axisFromQuery(text: string | undefined, field: string, fallback: { from: number; to: number; steps: number }): { from: number; to: number; steps: number } | number[] {
-  if (text === undefined || text === '') return fallback;
-  const m = /^\s*(-?[0-9.eE+-]+)\s*:\s*(-?[0-9.eE+-]+)\s*:\s*([0-9]+)\s*$/.exec(text);
-  if (m) return { from: Number(m[1]), to: Number(m[2]), steps: Number(m[3]) };
-  const list = text.split(',').map((s) => Number(s));
-  if (list.length < 2 || list.some((v) => !Number.isFinite(v))) {
-    throw new ApiError('invalid-request', `${field} must be from:to:steps or a comma-separated list of numbers`, field);
-  }
-  return list;
+  return text === undefined || text === '' ? fallback : parseAxisText(text, field);
 }

@@ -5,7 +5,8 @@
  */
 import type { Command } from 'commander';
 import type { TableSpecInput } from '../../solver/tableSpec.js';
-import { parseAxis, parseNumber } from '../args.js';
+import { parseAxisText as parseAxis } from '../../solver/tableSpec.js';
+import { parseNumber } from '../args.js';
 import { callServer, CliError, contentHash, notLoaded, openRegistry, resolveDrivetrain } from '../context.js';
 import { addSourceOptions, MODES_HELP, nameForServer, parseModes, sourceOf } from '../options.js';
 import { writeOutput } from '../output.js';
