@@ -1,8 +1,8 @@
 import { describe, it, expect } from 'vitest';
 import { pointsToGrid } from '../src/machine/fromPoints.js';
-import { buildMachineMap, electricalPowerAt, lossAt } from '../src/machine/map.js';
+import { buildMachineMap, electricalPowerAt, interp1, lossAt, maxTorqueAt } from '../src/machine/map.js';
 import { pointsMapSchema, type PointsMapDoc } from '../src/machine/schema.js';
-import { RAD_S_PER_RPM } from '../src/units.js';
+import { RAD_S_PER_RPM, rpmToRadS } from '../src/units.js';
 import { catchModelError } from './support/modelError.js';
 
 /** Invented loss surface of a machine with inverter, W (ω rad/s, T N·m); positive everywhere used. */
@@ -166,6 +166,17 @@ describe('pointsToGrid', () => {
     pts[7] = { speedRpm: 1000, torqueNm: 100, electricalW: 100 * w - 50 };
     const { provenance } = pointsToGrid(doc(pts));
     expect(provenance.notes.join(' ')).toContain('1 point with a slightly negative measured loss');
+  });
+
+  it('keeps every corner of the given envelope (never more torque than given)', () => {
+    const corner = { speedRpm: [0, 3000, 5000, 12000], maxTorqueNm: [250, 250, 150, 60], minTorqueNm: [-250, -250, -150, -60] };
+    const { grid, provenance } = pointsToGrid(doc(measuredPoints('electricalW'), { envelope: corner }));
+    const map = buildMachineMap('corner', grid, provenance);
+    expect(maxTorqueAt(map, rpmToRadS(5000))).toBeCloseTo(150, 9);
+    for (let n = 0; n <= 12000; n += 250) {
+      const given = interp1(corner.speedRpm, corner.maxTorqueNm, n);
+      expect(maxTorqueAt(map, rpmToRadS(n))).toBeLessThanOrEqual(given + 1e-9);
+    }
   });
 
   it('refuses a bad envelope with the element path', () => {

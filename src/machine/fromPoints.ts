@@ -178,9 +178,13 @@ export function pointsToGrid(doc: PointsMapDoc): { grid: GridInput; provenance: 
 
   const speedSteps = doc.grid?.speedSteps ?? 41;
   const torqueSteps = doc.grid?.torqueSteps ?? 61;
-  const speedRpm: number[] = [];
-  for (let i = 0; i < speedSteps; i++) speedRpm.push(i === speedSteps - 1 ? doc.maxSpeedRpm : (doc.maxSpeedRpm * i) / (speedSteps - 1));
   const env = doc.envelope;
+  // Even speeds plus the envelope's own speeds below the limit, so the grid envelope keeps every
+  // corner of the given one (a chord between grid speeds could promise more torque).
+  const speeds = new Set<number>();
+  for (let i = 0; i < speedSteps; i++) speeds.add(i === speedSteps - 1 ? doc.maxSpeedRpm : (doc.maxSpeedRpm * i) / (speedSteps - 1));
+  for (const s of env.speedRpm) if (s < doc.maxSpeedRpm) speeds.add(s);
+  const speedRpm = [...speeds].sort((x, y) => x - y);
   const maxTorqueNm = speedRpm.map((s) => interp1(env.speedRpm, env.maxTorqueNm, s));
   const minTorqueNm = speedRpm.map((s) => interp1(env.speedRpm, env.minTorqueNm, s));
   const lo = Math.min(...minTorqueNm);
