@@ -23,6 +23,7 @@ describe('drive cycles over HTTP', () => {
       .expect(200);
     const res = r.body.result;
     expect(res.durationS).toBe(1180);
+    // Plausible band for a light delivery van on the NEDC, 100–400 Wh/km (common practice).
     expect(res.whPerKm).toBeGreaterThan(100);
     expect(res.whPerKm).toBeLessThan(400);
     const l = res.losses;

@@ -25,6 +25,7 @@ describe('machine maps over HTTP', () => {
     expect(names).toContain('ring-machine');
     const s = await request(ctx.srv.url).get('/v1/machines/sun-machine').expect(200);
     expect(s.body.kind).toBe('grid');
+    // Peak efficiency of a machine with its inverter lies between 80 % and 100 % (common practice).
     expect(s.body.summary.peakEfficiency.motoring.efficiency).toBeGreaterThan(0.8);
     expect(s.body.summary.peakEfficiency.motoring.efficiency).toBeLessThan(1);
     expect(s.body.summary.maxTorqueNm).toBe(90);

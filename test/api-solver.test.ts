@@ -8,7 +8,7 @@ describe('drivetrains and operating points over HTTP', () => {
 
   it('returns the demo drivetrain with derived facts', async () => {
     const r = await request(ctx.srv.url).get('/v1/drivetrains/van-axle').expect(200);
-    // k = Zr/Zs and Zp = (Zr − Zs)/2 (planetary geometry, gear design handbooks).
+    // k = Zr/Zs and Zp = (Zr − Zs)/2 (planetary geometry; Müller, Epicyclic Drive Trains, 1982, from memory).
     expect(r.body.derived.k).toBeCloseTo(78 / 30, 12);
     expect(r.body.derived.planetTeeth).toBe(24);
     expect(r.body.derived.availableModes).toEqual(['split', 'ring-held', 'locked']);

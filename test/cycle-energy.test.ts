@@ -103,7 +103,7 @@ describe('cycle energy on a lossy drivetrain', () => {
   });
 
   it('lists steps beyond every mode’s speed limit', () => {
-    // Ring held alone: sun speed (1 + k)·i_fd·ω_wheel = 3.6 × 4 × ω_wheel; 12 000 rpm allows 94.2 km/h.
+    // Ring held alone: sun speed (1 + k)·i_fd·ω_wheel = 3.6 × 4 × ω_wheel (ring-held ratio, Shigley, gear-train chapter); 12 000 rpm allows 94.2 km/h.
     const fast = validateCycleTrace({ timeS: [0, 20, 40, 60], speedKph: [0, 120, 120, 0] });
     const r = runCycle(dt, testVehicle(), fast, { modes: ['ring-held'] });
     expect(r.unfollowed.map((s) => [s.timeS, s.reason])).toEqual([[20, 'above-max-speed']]);

@@ -102,7 +102,7 @@ describe('surface machine below base speed', () => {
     const we = (-b + Math.sqrt(b * b - 4 * a * c)) / (2 * a);
     expect(baseWe(SPM) / we).toBeCloseTo(1, 10);
 
-    // Textbook form with Rs = 0: ωb = V_max/√(ψ² + (Lq·I)²).
+    // Textbook form with Rs = 0: ωb = V_max/√(ψ² + (Lq·I)²) (e.g. Krishnan, Permanent Magnet Synchronous and Brushless DC Motor Drives, 2010, from memory).
     const lossless = { ...SPM, rsOhm: 1e-15 };
     expect(baseWe(lossless) / (SPM.maxVoltageV / Math.sqrt(a))).toBeCloseTo(1, 9);
   });

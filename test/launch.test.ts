@@ -17,7 +17,7 @@ describe('launch and top-speed check', () => {
   });
 
   it('stops at the machine speed limit when the road load allows more', () => {
-    // Ring held: sun speed = (1 + k)·i_fd·ω_wheel = 14.4·ω_wheel; 12 000 rpm → 833.33 rpm at the
+    // Ring held (ratio 1 + k, Shigley, gear-train chapter): sun speed = (1 + k)·i_fd·ω_wheel = 14.4·ω_wheel; 12 000 rpm → 833.33 rpm at the
     // wheel → 87.266 rad/s × 0.3 m = 26.180 m/s = 94.248 km/h.
     const c = launchCheck(dt, testVehicle(), { modes: ['ring-held'] });
     expect(c.topSpeedLimit).toBe('machine-speed');

@@ -33,6 +33,7 @@ function heldEfficiencyFromSplit(k: number, eta0: number, ringHeld: boolean, wc:
 }
 
 describe('Willis kinematics', () => {
+  // Willis equation (Müller, Epicyclic Drive Trains, 1982).
   it('ω_s + k·ω_r = (1 + k)·ω_c for every pair of speeds (Willis equation)', () => {
     fc.assert(
       fc.property(fc.double({ min: 1.2, max: 6, noNaN: true }), fc.double({ min: -1000, max: 1000, noNaN: true }), fc.double({ min: -1000, max: 1000, noNaN: true }), (k, ws, wc) => {
@@ -119,6 +120,7 @@ describe('torque split and mesh loss', () => {
     );
   });
 
+  // Willis equation and the lossless torque ratio (Müller, Epicyclic Drive Trains, 1982).
   it('lossless set: T_r = k·T_s and no mesh loss (Willis, η0 = 1)', () => {
     const k = 3;
     const ts = sunTorque(k, 1, 400, 25);
@@ -126,6 +128,7 @@ describe('torque split and mesh loss', () => {
     expect(meshLoss(1, ts, 400, 25)).toBe(0);
   });
 
+  // Static friction at Δ = 0 allows any ratio between k·η0 and k/η0 (DESIGN.md §4; common practice).
   it('Δ = 0: the sun torque band spans T_r/T_s from k·η0 to k/η0 and there is no mesh loss', () => {
     const k = 2.6;
     const eta0 = 0.97;
@@ -141,7 +144,9 @@ describe('torque split and mesh loss', () => {
   });
 });
 
-describe('tooth-count rules (gear design handbooks: planet teeth, assembly, adjacency)', () => {
+// Rules as given in planetary gear design texts (Müller, Epicyclic Drive Trains, 1982, from memory):
+// planet teeth (Zr − Zs)/2 whole, assembly (Zs + Zr)/N whole, adjacency (Zs + Zp)·sin(π/N) > Zp + 2.
+describe('tooth-count rules (planet teeth, assembly, adjacency)', () => {
   function refused(zs: number, zr: number, n: number): ModelError {
     try {
       checkGeometry(zs, zr, n);

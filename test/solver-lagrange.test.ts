@@ -8,7 +8,7 @@
  * Lagrangian Λ = b_s·ω_s² + b_r·ω_r² − λ·(ω_s + k·ω_r − (1 + k)·ω_c):
  *   ∂Λ/∂ω_s = 2·b_s·ω_s − λ = 0,  ∂Λ/∂ω_r = 2·b_r·ω_r − k·λ = 0  ⇒  ω_r = k·b_s·ω_s/b_r,
  * and substituting into the constraint, ω_s* = (1 + k)·ω_c·b_r/(b_r + k²·b_s).
- * (Lagrange multipliers for an equality-constrained quadratic; any calculus text.)
+ * (Lagrange multipliers for an equality-constrained quadratic: common practice.)
  *
  * The solver works on the bilinear interpolation of the grid; its minimiser lies within one
  * grid step of the smooth one: the interpolation error of a quadratic b·ω² over a step h is at

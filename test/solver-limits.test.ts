@@ -3,10 +3,10 @@
  * every setting within every limit, zero torque, standstill, reverse, regeneration, battery
  * limits, friction-brake share, strict mode, infeasible reasons and wheel-torque limits, modes
  * filter, device power and power balance. Reference values are recomputed independently from the
- * maps (test/helpers/reference.ts).
+ * maps (test/support/solverReference.ts).
  */
 import { describe, it, expect } from 'vitest';
-import { maxTorqueAt } from '../src/machine/map.js';
+import { maxTorqueAt, minTorqueAt } from '../src/machine/map.js';
 import { solvePoint, solvePoints } from '../src/solver/point.js';
 import { largestFeasibleWheel, machineWheelLimit, scanDown, wheelTorqueLimits } from '../src/solver/envelope.js';
 import { modeMask } from '../src/solver/modes.js';
@@ -136,7 +136,7 @@ describe('wheel-torque limits', () => {
     const side = (map: typeof sun, w: number) => {
       const hi = maxTorqueAt(map, w);
       if (Number.isNaN(hi)) return NaN;
-      return sigma > 0 ? hi : -(-maxTorqueAt(map, -w)); // mirror: minTorque(ω) = −maxTorque(−ω)
+      return sigma > 0 ? hi : minTorqueAt(map, w);
     };
     let bestOut = 0;
     const range = refSplitRange(ref, wc);

@@ -19,7 +19,7 @@ import { runSweepPooled } from '../src/vehicle/sweepPool.js';
 const getMachine = machineLookup();
 
 /**
- * Planetary tooth-count rules written out independently (gear design handbooks: coaxial
+ * Planetary tooth-count rules written out independently (Müller, Epicyclic Drive Trains, 1982, from memory: coaxial
  * condition, assembly condition for N equally spaced planets, adjacency of neighbouring planets).
  */
 function handbookValid(zs: number, zr: number, n: number): boolean {

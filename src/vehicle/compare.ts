@@ -112,7 +112,7 @@ export function compareLayouts(
   base.baseline = true;
   for (const r of rows) {
     if (r.whPerKm !== null && base.whPerKm !== null && base.whPerKm !== 0) {
-      r.savingsPct = (100 * (base.whPerKm - r.whPerKm)) / base.whPerKm;
+      r.savingsPct = (100 * (base.whPerKm - r.whPerKm)) / Math.abs(base.whPerKm); // a net-downhill cycle has negative Wh/km
     }
   }
   return {
