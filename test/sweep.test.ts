@@ -15,6 +15,7 @@ import { scaleMachineTorque } from '../src/machine/scale.js';
 import { lossAt, maxTorqueAt } from '../src/machine/map.js';
 import { drivetrainDoc, machineLookup, SUN } from './support/syntheticDrivetrain.js';
 import { runSweepPooled } from '../src/vehicle/sweepPool.js';
+import { catchModelError } from './support/modelError.js';
 
 const getMachine = machineLookup();
 
@@ -101,6 +102,18 @@ describe('design sweep expansion', () => {
     expect(shards.flat().map((d) => d.index).sort((a, b) => a - b)).toEqual(designs.map((d) => d.index));
     for (const [i, s] of shards.entries()) for (const d of s) expect(d.index % 3).toBe(i);
     expect(() => shardDesigns(designs, 3, 3)).toThrow(ModelError);
+  });
+});
+
+describe('sweep size limits', () => {
+  it('refuses too many tooth combinations before checking any of them', () => {
+    const big = spec({ sunTeeth: { from: 10, to: 509, step: 1 }, ringTeeth: { from: 600, to: 1099, step: 1 } });
+    const e = catchModelError(() => expandSweep(big));
+    expect([e.code, e.path]).toEqual(['too-large', 'sweep']);
+  });
+  it('applies the value limits to ranges as to lists', () => {
+    const e = catchModelError(() => expandSweep(spec({ finalDriveRatio: { from: 5000, to: 5001, step: 1 } })));
+    expect(e.code).toBe('sweep-invalid');
   });
 });
 

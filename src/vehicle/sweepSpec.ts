@@ -15,6 +15,8 @@ import { cycleInputSchema, vehicleSchema } from './schema.js';
 export const MAX_SWEEP_DESIGNS = 20_000;
 /** Largest number of values one sweep axis may hold. */
 export const MAX_AXIS_VALUES = 500;
+/** Largest number of sun × ring × planet combinations checked against the geometry rules. */
+export const MAX_TOOTH_COMBINATIONS = 200_000;
 /** Largest number of cycles in one sweep. */
 export const MAX_SWEEP_CYCLES = 8;
 
@@ -121,7 +123,9 @@ function axisValues(axis: Axis, fallback: number, field: string): number[] {
 function intValues(axis: Axis, fallback: number, field: string): number[] {
   const v = axisValues(axis, fallback, field);
   v.forEach((x, i) => {
-    if (!Number.isInteger(x) || x < 1) throw new ModelError('sweep-invalid', `${field} values must be whole numbers >= 1 (got ${x})`, `sweep.${field}[${i}]`);
+    if (!Number.isInteger(x) || x < 1 || x > 10_000) {
+      throw new ModelError('sweep-invalid', `${field} values must be whole numbers from 1 to 10 000 (got ${x})`, `sweep.${field}[${i}]`);
+    }
   });
   return v;
 }
@@ -129,7 +133,7 @@ function intValues(axis: Axis, fallback: number, field: string): number[] {
 function posValues(axis: Axis, fallback: number, field: string): number[] {
   const v = axisValues(axis, fallback, field);
   v.forEach((x, i) => {
-    if (!(x > 0)) throw new ModelError('sweep-invalid', `${field} values must be positive (got ${x})`, `sweep.${field}[${i}]`);
+    if (!(x > 0) || x > 1_000) throw new ModelError('sweep-invalid', `${field} values must be positive and at most 1 000 (got ${x})`, `sweep.${field}[${i}]`);
   });
   return v;
 }
@@ -147,6 +151,10 @@ function expand(spec: SweepSpec): { designs: SweepDesign[]; rejected: RejectedGe
   const fd = posValues(spec.finalDriveRatio, spec.drivetrain.finalDrive.ratio, 'finalDriveRatio');
   const ss = posValues(spec.sunTorqueScale, 1, 'sunTorqueScale');
   const rs = posValues(spec.ringTorqueScale, 1, 'ringTorqueScale');
+  const combinations = zs.length * zr.length * np.length;
+  if (combinations > MAX_TOOTH_COMBINATIONS) {
+    throw new ModelError('too-large', `the sweep tries ${combinations} tooth combinations; at most ${MAX_TOOTH_COMBINATIONS} are allowed`, 'sweep');
+  }
   const rejected: RejectedGearset[] = [];
   const gearsets: Array<{ sunTeeth: number; ringTeeth: number; planets: number; planetTeeth: number }> = [];
   for (const s of zs) {
