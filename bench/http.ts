@@ -23,6 +23,7 @@ import { getBuiltinCycle } from '../src/vehicle/cycles.js';
 import { cycleWheelDemand } from '../src/vehicle/roadLoad.js';
 import { parseVehicle } from '../src/vehicle/schema.js';
 import { prng } from './prng.js';
+import { median } from './stats.js';
 
 const MAPS_DIR = path.resolve(import.meta.dirname, '../maps');
 const DRIVETRAIN = 'van-axle';
@@ -95,7 +96,6 @@ export function spreadPoints(n: number, maxWheelSpeedRpm: number, maxWheelNm: nu
   }));
 }
 
-const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)]!;
 const clamp = (x: number, lo: number, hi: number) => Math.min(hi, Math.max(lo, x));
 
 function cannon(opts: autocannon.Options): Promise<autocannon.Result> {

@@ -10,22 +10,18 @@
  * Options: --quick (shorter HTTP runs), --skip-http.
  */
 import { availableParallelism } from 'node:os';
-import path from 'node:path';
-import { fileURLToPath } from 'node:url';
 import { solvePoint } from '../src/solver/point.js';
 import { buildTable } from '../src/solver/table.js';
-import { Registry } from '../src/store/registry.js';
 import { cycleWheelDemand } from '../src/vehicle/roadLoad.js';
 import { runCycle } from '../src/vehicle/cycleEnergy.js';
 import { getBuiltinCycle } from '../src/vehicle/cycles.js';
 import { parseVehicle, validateCycleTrace } from '../src/vehicle/schema.js';
 import { radSToRpm } from '../src/units.js';
 import { runHttpBench } from './http.js';
-import { runSolverBench } from './solver.js';
+import { demoDrivetrain, runSolverBench } from './solver.js';
+import { median } from './stats.js';
 
-const here = path.dirname(fileURLToPath(import.meta.url));
 const args = new Set(process.argv.slice(2));
-const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)]!;
 const time = (fn: () => void) => {
   const t0 = performance.now();
   fn();
@@ -37,10 +33,7 @@ const timeAsync = async (fn: () => Promise<unknown>) => {
   return performance.now() - t0;
 };
 
-const registry = new Registry({ mapsDir: path.join(here, '..', 'maps'), dataDir: path.join(here, '..', 'tmp', 'bench-data-none') });
-await registry.load();
-const dt = registry.getDrivetrain('van-axle');
-if (!dt) throw new Error('demo drivetrain van-axle not found in maps/');
+const dt = await demoDrivetrain();
 
 console.log(`episplit benchmarks — node ${process.version}, ${availableParallelism()} cores`);
 

@@ -3,11 +3,13 @@
  * speed-up against a dense scan of each mode's free variable (20 000 samples) with the solver's
  * answer at least as good as the scan's. Run: npx tsx bench/solver.ts
  *
- * The drivetrain built here is a demo-like axle from synthetic maps (invented data).
+ * Run alone it measures the demo drivetrain of maps/ (invented data), as `npm run bench` does.
  */
 import { pathToFileURL } from 'node:url';
-import { buildMachineMap, isFeasible, lossAny, maxTorqueAt, minTorqueAt, speedAllowed, type MachineMap } from '../src/machine/map.js';
-import { buildDrivetrain, describeDrivetrain, type Drivetrain } from '../src/solver/drivetrain.js';
+import { Registry } from '../src/store/registry.js';
+import { median } from './stats.js';
+import { isFeasible, lossAny, maxTorqueAt, minTorqueAt, speedAllowed } from '../src/machine/map.js';
+import { describeDrivetrain, type Drivetrain } from '../src/solver/drivetrain.js';
 import { solvePoint } from '../src/solver/point.js';
 import { wheelTorqueLimits } from '../src/solver/envelope.js';
 import { carrierFromWheelTorque } from '../src/gearset/finalDrive.js';
@@ -100,10 +102,6 @@ function scanPoint(dt: Drivetrain, wheelRpm: number, wheelNm: number): number {
   return best;
 }
 
-function median(xs: number[]): number {
-  const s = [...xs].sort((a, b) => a - b);
-  return s[s.length >> 1]!;
-}
 
 function rate(fn: () => number, runs: number, minMs: number): number {
   const rates: number[] = [];
@@ -176,54 +174,17 @@ export function runSolverBench(dt: Drivetrain, runs = 7): SolverBenchFigures {
   };
 }
 
-/** Synthetic machine (invented data): constant torque to the corner speed, then constant power. */
-function benchMap(name: string, maxRpm: number, peakNm: number, cornerRpm: number, lossScale: number): MachineMap {
-  const speedRpm = Array.from({ length: 41 }, (_, i) => (maxRpm * i) / 40);
-  const tMax = peakNm * 1.02;
-  const torqueNm = Array.from({ length: 61 }, (_, j) => -tMax + (2 * tMax * j) / 60);
-  const pMax = peakNm * cornerRpm * RAD_S_PER_RPM;
-  const maxTorqueNm = speedRpm.map((n) => (n <= cornerRpm ? peakNm : pMax / (n * RAD_S_PER_RPM)));
-  const lossW = speedRpm.map((n) => {
-    const w = n * RAD_S_PER_RPM;
-    // copper ∝ T², iron ∝ ω and ω², friction and inverter standing loss, field weakening above the corner
-    return torqueNm.map((t) => lossScale * (120 + 0.3 * w + 0.0011 * w * w + (0.03 * t * t * peakNm) / 150 + (n > cornerRpm ? 0.00004 * w * w * (1 + Math.abs(t) / peakNm) : 0)));
-  });
-  return buildMachineMap(
-    name,
-    { speedRpm, torqueNm, lossW, maxTorqueNm, minTorqueNm: maxTorqueNm.map((t) => -t), maxSpeedRpm: maxRpm, reverse: true },
-    { source: 'grid', filledCells: 0, extrapolatedCells: 0, zeroSpeedLossChangeW: 0, zeroSpeedTorqueChangeNm: 0, notes: ['synthetic benchmark map (invented data)'] },
-  );
+/** The demo drivetrain from maps/ (invented data), the one `npm run bench` measures. */
+export async function demoDrivetrain(): Promise<Drivetrain> {
+  const registry = new Registry({ mapsDir: new URL('../maps', import.meta.url).pathname, dataDir: new URL('../tmp/bench-data-none', import.meta.url).pathname });
+  await registry.load();
+  const dt = registry.getDrivetrain('van-axle');
+  if (!dt) throw new Error('demo drivetrain van-axle not found in maps/');
+  return dt;
 }
 
-/** A demo-like axle on synthetic maps (invented data). */
-export function benchDrivetrain(): Drivetrain {
-  const maps = new Map([
-    ['bench-sun', benchMap('bench-sun', 14000, 150, 4500, 1)],
-    ['bench-ring', benchMap('bench-ring', 8000, 330, 2500, 1.6)],
-  ]);
-  return buildDrivetrain(
-    'bench-axle',
-    {
-      description: 'benchmark axle on synthetic maps (invented data)',
-      sunMachine: 'bench-sun',
-      ringMachine: 'bench-ring',
-      gearset: { sunTeeth: 30, ringTeeth: 78, planets: 3, baseEfficiency: 0.978 },
-      finalDrive: { ratio: 4.1, efficiency: 0.97 },
-      wheelRadiusM: 0.34,
-      devices: {
-        ringBrake: { engagedW: 0, releasedW: 15, maxTorqueNm: 800 },
-        sunBrake: { engagedW: 20, releasedW: 0, maxTorqueNm: 300 },
-        lockClutch: { engagedW: 25, releasedW: 0, maxTorqueNm: 250 },
-      },
-      battery: { maxDischargeW: 150_000, maxChargeW: 80_000 },
-      auxiliaryW: 400,
-    },
-    (n) => maps.get(n),
-  );
-}
-
-function main(): void {
-  const dt = benchDrivetrain();
+async function main(): Promise<void> {
+  const dt = await demoDrivetrain();
   const f = runSolverBench(dt);
   console.log(`solver bench: drivetrain ${dt.name}, ${f.points} wheel points, median of ${f.runs} runs`);
   console.log(`solves per second (all modes): ${f.solvesPerSecond.toFixed(0)}`);
@@ -234,4 +195,4 @@ function main(): void {
   console.log(`solver not worse than the scan: ${(100 * f.notWorseShare).toFixed(1)} % of points; largest scan excess ${f.maxScanExcessW.toFixed(3)} W`);
 }
 
-if (process.argv[1] && import.meta.url === pathToFileURL(process.argv[1]).href) main();
+if (process.argv[1] && import.meta.url === pathToFileURL(process.argv[1]).href) await main();
