@@ -2,8 +2,9 @@
  * Torque scaling of a machine map for design sweeps.
  *
  * Scaling law assumed (common practice for first-cut sizing): the machine is lengthened or
- * shortened in the axial direction by the factor s with the same cross-section, winding and
- * inverter technology. Torque at a given current grows with active length, so the torque axis
+ * shortened in the axial direction by the factor s with the same cross-section, rewound for the
+ * same voltage (turns ∝ 1/s, so back-EMF, base speed and the speed limit stay put) and driven by
+ * an inverter whose current rating is ∝ s, of the same technology. Torque at a given current grows with active length, so the torque axis
  * and envelope scale by s; copper loss (resistance ∝ length at the same current density) and
  * iron loss (∝ iron volume at the same flux density and frequency) scale by s as well, so
  *

@@ -190,11 +190,6 @@ export class Registry {
     return this.serialized(async () => {
       const doc = parseMachineDoc(value);
       const loaded = loadMachine(name, doc);
-      // Drivetrains using this machine must still build with the new map.
-      for (const d of this.drivetrains.values()) {
-        if (d.doc.sunMachine !== name && d.doc.ringMachine !== name) continue;
-        buildDrivetrain(d.name, d.doc, (n) => (n === name ? loaded.map : this.machines.get(n)?.map));
-      }
       await writeFileAtomic(documentPath(this.machineDir, name), JSON.stringify(doc, null, 1) + '\n');
       const created = !this.machines.has(name);
       const entry: MachineEntry = { ...loaded, name, origin: 'data', hash: contentHash(doc) };
