@@ -1,3 +1,5 @@
+import type { z } from 'zod';
+
 /**
  * Errors raised below the HTTP layer (the computational core and the document store). Each carries a stable code from the catalogue
  * (src/api/errors.ts maps codes to HTTP statuses) and, where it applies, the path of the
@@ -50,4 +52,24 @@ export function fieldPath(path: readonly PropertyKey[], base = ''): string {
 /** Joins a base path and a key or index into `a.b[3].c` form. */
 export function joinPath(base: string | undefined, key: string | number): string {
   return fieldPath([key], base ?? '');
+}
+
+/**
+ * Parses `value` with a zod schema; the first issue becomes a ModelError with `code`, the field
+ * path under `base`, and a message that starts with that path. A schema issue that is too many
+ * array elements may take its own code (`tooManyCode`, e.g. too-large).
+ */
+export function parseOrThrow<S extends z.ZodType>(
+  schema: S,
+  value: unknown,
+  code: ProblemCode,
+  base = '',
+  tooManyCode?: ProblemCode,
+): z.output<S> {
+  const r = schema.safeParse(value);
+  if (r.success) return r.data;
+  const issue = r.error.issues[0]!;
+  const path = fieldPath(issue.path, base);
+  const tooMany = tooManyCode !== undefined && issue.code === 'too_big' && (issue as { origin?: string }).origin === 'array';
+  throw new ModelError(tooMany ? tooManyCode : code, path ? `${path}: ${issue.message}` : issue.message, path || undefined);
 }

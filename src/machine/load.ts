@@ -2,7 +2,7 @@
  * One entry point from any machine document to the canonical map: validates the document
  * with its zod schema, converts it by kind, and builds the canonical grid.
  */
-import { fieldPath, ModelError } from '../problem.js';
+import { parseOrThrow } from '../problem.js';
 import { dqToGrid } from './dqModel.js';
 import { gridToInput } from './fromGrid.js';
 import { pointsToGrid } from './fromPoints.js';
@@ -18,13 +18,7 @@ export interface LoadedMachine {
 
 /** Parses an unknown value as a machine document; schema failures are `map-invalid` with the field path. */
 export function parseMachineDoc(value: unknown): MachineDoc {
-  const r = machineDocSchema.safeParse(value);
-  if (!r.success) {
-    const issue = r.error.issues[0]!;
-    const path = fieldPath(issue.path);
-    throw new ModelError('map-invalid', issue.message, path || undefined);
-  }
-  return r.data;
+  return parseOrThrow(machineDocSchema, value, 'map-invalid');
 }
 
 function toGrid(doc: MachineDoc): { grid: GridInput; provenance: MapProvenance } {

@@ -4,7 +4,7 @@
  * limits, sorted breakpoint arrays in machine speed and torque, and preallocated scratch.
  */
 import { z } from 'zod';
-import { fieldPath, ModelError } from '../problem.js';
+import { ModelError, parseOrThrow } from '../problem.js';
 import { machineName } from '../machine/schema.js';
 import type { MachineMap } from '../machine/map.js';
 import { checkGeometry } from '../gearset/geometry.js';
@@ -143,13 +143,7 @@ function mirrorAxis(axis: Float64Array): Float64Array {
 export function buildDrivetrain(name: string, input: unknown, getMachine: (name: string) => MachineMap | undefined): Drivetrain {
   const named = machineName.safeParse(name);
   if (!named.success) throw new ModelError('drivetrain-invalid', `drivetrain name: ${named.error.issues[0]!.message}`, 'name');
-  const parsed = drivetrainSchema.safeParse(input);
-  if (!parsed.success) {
-    const issue = parsed.error.issues[0]!;
-    const path = fieldPath(issue.path);
-    throw new ModelError('drivetrain-invalid', `${path || 'document'}: ${issue.message}`, path || undefined);
-  }
-  const doc = parsed.data;
+  const doc = parseOrThrow(drivetrainSchema, input, 'drivetrain-invalid');
   const g = checkGeometry(doc.gearset.sunTeeth, doc.gearset.ringTeeth, doc.gearset.planets);
   const sun = getMachine(doc.sunMachine);
   if (!sun) throw new ModelError('unknown-machine', `no machine named "${doc.sunMachine}"`, 'sunMachine');

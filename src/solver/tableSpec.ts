@@ -5,7 +5,7 @@
  * (ascending axes, the cell cap) and throws `ModelError('table-invalid', …, path)`.
  */
 import { z } from 'zod';
-import { fieldPath, ModelError } from '../problem.js';
+import { ModelError, parseOrThrow } from '../problem.js';
 import { MODES, type Mode } from './types.js';
 
 /** Longest axis of a table. */
@@ -103,13 +103,7 @@ function expandAxis(a: TableAxisSpec, field: string): Float64Array {
  * ordering and size errors are `ModelError('table-invalid')` with the field path.
  */
 export function resolveTableSpec(input: TableSpecInput | TableSpec, maxCells: number = MAX_TABLE_CELLS): ResolvedTableSpec {
-  const parsed = tableSpecSchema.safeParse(input);
-  if (!parsed.success) {
-    const issue = parsed.error.issues[0]!;
-    const path = fieldPath(issue.path);
-    throw new ModelError('table-invalid', issue.message, path || undefined);
-  }
-  const spec = parsed.data;
+  const spec = parseOrThrow(tableSpecSchema, input, 'table-invalid');
   const speedRpm = expandAxis(spec.speedRpm, 'speedRpm');
   const torqueNm = expandAxis(spec.torqueNm, 'torqueNm');
   const cells = speedRpm.length * torqueNm.length;

@@ -4,7 +4,7 @@
  */
 import { parse } from 'csv-parse/sync';
 import { z } from 'zod';
-import { fieldPath, ModelError } from '../problem.js';
+import { ModelError, parseOrThrow } from '../problem.js';
 import { SEA_LEVEL_AIR_DENSITY } from '../units.js';
 import { BUILTIN_CYCLE_IDS, getBuiltinCycle } from './cycles.js';
 
@@ -177,25 +177,15 @@ export function parseCycleCsv(text: string, name = 'csv', base = 'cycle'): Cycle
 
 /** Validates a vehicle document (defaults applied); errors are `vehicle-invalid` with the field path. */
 export function parseVehicle(input: unknown, base = 'vehicle'): Vehicle {
-  const r = vehicleSchema.safeParse(input);
-  if (!r.success) {
-    const issue = r.error.issues[0]!;
-    const path = fieldPath(issue.path, base);
-    throw new ModelError('vehicle-invalid', `${path}: ${issue.message}`, path);
-  }
-  return r.data;
+  return parseOrThrow(vehicleSchema, input, 'vehicle-invalid', base);
 }
 
 /** Validates a cycle document (built-in id or trace) and resolves it; errors are `cycle-invalid` with the path. */
 export function parseCycleInput(input: unknown, base = 'cycle'): Cycle {
   const isBuiltin = typeof input === 'object' && input !== null && 'builtin' in input;
-  const r = (isBuiltin ? builtinCycleSchema : cycleTraceSchema).safeParse(input);
-  if (!r.success) {
-    const issue = r.error.issues[0]!;
-    const path = fieldPath(issue.path, base);
-    // Only too many samples is "too large"; a long name or a big value is simply invalid.
-    const tooBig = issue.code === 'too_big' && (issue as { origin?: string }).origin === 'array';
-    throw new ModelError(tooBig ? 'too-large' : 'cycle-invalid', `${path}: ${issue.message}`, path);
-  }
-  return resolveCycle(r.data as CycleInput, base);
+  // Only too many samples is "too large"; a long name or a big value is simply invalid.
+  const doc = isBuiltin
+    ? parseOrThrow(builtinCycleSchema, input, 'cycle-invalid', base)
+    : parseOrThrow(cycleTraceSchema, input, 'cycle-invalid', base, 'too-large');
+  return resolveCycle(doc, base);
 }

@@ -5,7 +5,7 @@
  * geometry rules (src/gearset/geometry.ts) and gives every design a stable id and index.
  */
 import { z } from 'zod';
-import { fieldPath, ModelError } from '../problem.js';
+import { ModelError, parseOrThrow } from '../problem.js';
 import { checkGeometry } from '../gearset/geometry.js';
 import { drivetrainSchema } from '../solver/drivetrain.js';
 import { MODES } from '../solver/types.js';
@@ -95,13 +95,7 @@ export interface RejectedGearset {
 
 /** Validates a sweep specification (defaults applied); errors are `sweep-invalid` with the field path. */
 export function parseSweepSpec(input: unknown): SweepSpec {
-  const r = sweepSpecSchema.safeParse(input);
-  if (!r.success) {
-    const issue = r.error.issues[0]!;
-    const path = fieldPath(issue.path, 'sweep');
-    throw new ModelError('sweep-invalid', `${path}: ${issue.message}`, path);
-  }
-  return r.data;
+  return parseOrThrow(sweepSpecSchema, input, 'sweep-invalid', 'sweep');
 }
 
 type Axis = number[] | { from: number; to: number; step: number } | undefined;

@@ -9,7 +9,7 @@ import { parseCycleCsv, parseCycleInput, vehicleSchema, type Cycle } from '../..
 import { plotCycle } from '../../report/svg/plotCycle.js';
 import type { Drivetrain } from '../../solver/drivetrain.js';
 import type { Mode } from '../../solver/types.js';
-import { fieldPath, ModelError } from '../../problem.js';
+import { parseOrThrow } from '../../problem.js';
 import { ApiError } from '../errors.js';
 import { errorBodySchema, nameParams } from '../schemas.js';
 import { drivetrainOr404 } from './common.js';
@@ -37,12 +37,8 @@ export type CycleRequest = z.output<typeof cycleRequestSchema>;
 
 export function resolveCycleBody(cycle: unknown): Cycle {
   if (typeof cycle === 'object' && cycle !== null && 'csv' in cycle) {
-    const r = csvCycleSchema.safeParse(cycle);
-    if (!r.success) {
-      const issue = r.error.issues[0]!;
-      throw new ModelError('cycle-invalid', issue.message, fieldPath(issue.path, 'cycle'));
-    }
-    return parseCycleCsv(r.data.csv, r.data.name ?? 'csv', 'cycle');
+    const doc = parseOrThrow(csvCycleSchema, cycle, 'cycle-invalid', 'cycle');
+    return parseCycleCsv(doc.csv, doc.name ?? 'csv', 'cycle');
   }
   return parseCycleInput(cycle, 'cycle');
 }
