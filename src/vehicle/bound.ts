@@ -48,8 +48,12 @@ function stepwiseSwitches(modeIndex: Int8Array): number {
   return n;
 }
 
-/** Bound from a cycle run made with `modeEnergies: true`. */
-export function boundFromRun(run: CycleResult, switchCostWh = 0): CycleBound {
+/**
+ * Bound from a cycle run made with `modeEnergies: true`. The time per mode along the bound's
+ * sequence needs the step durations, s: the run's series when it has one, else `durationsS`
+ * (without either, `boundModeTimeS` is empty).
+ */
+export function boundFromRun(run: CycleResult, switchCostWh = 0, durationsS: ArrayLike<number> | undefined = run.series?.durationS): CycleBound {
   if (!run.modeEnergyWh || !run.modeIndex) throw new RangeError('the cycle run lacks per-mode energies (run it with modeEnergies: true)');
   const steps = run.steps;
   const nm = MODES.length;
@@ -61,7 +65,7 @@ export function boundFromRun(run: CycleResult, switchCostWh = 0): CycleBound {
   }
   const switches = stepwiseSwitches(run.modeIndex);
   const stepwiseWh = stepwiseEnergyWh + switches * switchCostWh;
-  const durations = run.series?.durationS;
+  const durations = durationsS;
   const boundModeTimeS: Partial<Record<Mode, number>> = {};
   if (durations) {
     for (let k = 0; k < steps; k++) {

@@ -17,7 +17,7 @@
 import type { MachineMap } from '../machine/map.js';
 import { buildDrivetrain, type Drivetrain, type DrivetrainDoc } from '../solver/drivetrain.js';
 import { MODES, type Mode, type SolveOptions } from '../solver/types.js';
-import { runCycle } from './cycleEnergy.js';
+import { runCycle, type CycleResult } from './cycleEnergy.js';
 import type { Cycle, Vehicle } from './schema.js';
 
 export const LAYOUTS = ['sun-alone', 'ring-alone', 'split-only', 'full'] as const;
@@ -75,13 +75,19 @@ export function layoutVariant(doc: DrivetrainDoc, layout: Layout): { doc: Drivet
   }
 }
 
+export interface CompareOptions {
+  solve?: SolveOptions;
+  layouts?: readonly Layout[];
+  /**
+   * A run already made of the same cycle and vehicle on `dt` itself, with the options of `solve`
+   * except `modes`, which must select every mode `dt` allows: the `full` layout would solve each
+   * step exactly as that run did, so its figures fill the `full` row instead of a second run.
+   */
+  fullRun?: CycleResult;
+}
+
 /** Runs one cycle on every layout of `dt` and tabulates Wh/km and savings against the baseline. */
-export function compareLayouts(
-  dt: Drivetrain,
-  vehicle: Vehicle,
-  cycle: Cycle,
-  opts: { solve?: SolveOptions; layouts?: readonly Layout[] } = {},
-): LayoutComparison {
+export function compareLayouts(dt: Drivetrain, vehicle: Vehicle, cycle: Cycle, opts: CompareOptions = {}): LayoutComparison {
   const maps = new Map<string, MachineMap>([
     [dt.doc.sunMachine, dt.sun],
     [dt.doc.ringMachine, dt.ring],
@@ -91,7 +97,7 @@ export function compareLayouts(
     const v = layoutVariant(dt.doc, layout);
     const variant = layout === 'full' ? dt : buildDrivetrain(dt.name, v.doc, (n) => maps.get(n));
     const modes = v.modes.filter((m) => variant.modeAvailable[MODES.indexOf(m)]);
-    const r = runCycle(variant, vehicle, cycle, { solve: { ...opts.solve, modes: v.modes } });
+    const r = layout === 'full' && opts.fullRun ? opts.fullRun : runCycle(variant, vehicle, cycle, { solve: { ...opts.solve, modes: v.modes } });
     rows.push({
       layout,
       description: v.description,

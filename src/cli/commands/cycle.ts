@@ -7,7 +7,6 @@ import { existsSync, readFileSync } from 'node:fs';
 import { basename } from 'node:path';
 import { Option, type Command } from 'commander';
 import type { Mode } from '../../solver/types.js';
-import type { CycleResult } from '../../vehicle/cycleEnergy.js';
 import { BUILTIN_CYCLE_IDS, getBuiltinCycle, type BuiltinCycleId } from '../../vehicle/cycles.js';
 import type { Cycle } from '../../vehicle/schema.js';
 import { parseNumber } from '../args.js';
@@ -115,24 +114,19 @@ export function registerCycle(program: Command): void {
       answer = (await (await callServer(opts.url, 'POST', `/v1/drivetrains/${nameForServer(opts.drivetrain, 'cycle')}/cycles`, body)).json()) as CycleAnswer;
     } else {
       const { parseVehicle } = await import('../../vehicle/schema.js');
-      const { runCycle } = await import('../../vehicle/cycleEnergy.js');
-      const { compareLayouts } = await import('../../vehicle/compare.js');
-      const { cycleBounds } = await import('../../vehicle/bound.js');
+      const { runCycleJob } = await import('../../vehicle/cycleJob.js');
       const vehicle = parseVehicle(vehicleDoc, 'vehicle');
       const cycle = await resolveCycleSource(src);
       const registry = await openRegistry(sourceOf(opts));
       const { dt } = resolveDrivetrain(registry, opts.drivetrain);
-      const solve = modes ? { modes: modes as Mode[] } : {};
-      const result: CycleResult = runCycle(dt, vehicle, cycle, {
-        solve,
+      // The service's own job: one run serves the result, the bounds and the full layout.
+      answer = runCycleJob(dt, vehicle, cycle, {
+        compare: opts.compare === true,
         series: wantSeries,
+        ...(modes ? { modes: modes as Mode[] } : {}),
+        ...(switchCostsWh ? { switchCostsWh } : {}),
         ...(usableBatteryWh !== undefined ? { usableBatteryWh } : {}),
       });
-      answer = {
-        result,
-        ...(opts.compare ? { comparison: compareLayouts(dt, vehicle, cycle, { solve }) } : {}),
-        ...(switchCostsWh ? { bounds: cycleBounds(dt, vehicle, cycle, switchCostsWh, { solve }) } : {}),
-      };
     }
     let svg: string | undefined;
     if (opts.svg !== undefined) {
