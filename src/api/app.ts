@@ -22,6 +22,7 @@ import { operatingPointRoutes } from './routes/operatingPoints.js';
 import { plotRoutes } from './routes/plots.js';
 import { tableRoutes } from './routes/tables.js';
 import { createTableBuilder, type TableBuilder } from './tableBuilder.js';
+import { createWorkerPool, type WorkerPool } from './workerPool.js';
 
 export interface AppOptions {
   config: Config;
@@ -91,9 +92,11 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
   if (!opts.registry) await registry.load();
   app.decorate('registry', registry);
   app.decorate('config', config);
-  const tables = createTableBuilder();
-  app.decorate('tables', tables);
-  app.addHook('onClose', async () => tables.close());
+  // One worker pool for the app: large tables and drive cycles run on its threads.
+  const workers = createWorkerPool();
+  app.decorate('workers', workers);
+  app.decorate('tables', createTableBuilder(workers));
+  app.addHook('onClose', async () => workers.close());
 
   await app.register(fastifySwagger, {
     openapi: {
@@ -134,5 +137,6 @@ declare module 'fastify' {
     registry: Registry;
     config: Config;
     tables: TableBuilder;
+    workers: WorkerPool;
   }
 }

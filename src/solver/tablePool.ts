@@ -6,6 +6,8 @@
  *
  * The worker script sits next to this file: `tableWorker.js` when compiled, else
  * `tableWorker.ts`, which is loaded through tsx's loader (`--import <tsx>`) in each worker.
+ * The same threads run tasks of other worker scripts ({@link TablePool.runScript}), so one pool
+ * per process serves tables and drive cycles alike.
  */
 import { availableParallelism } from 'node:os';
 import { randomUUID } from 'node:crypto';
@@ -15,7 +17,7 @@ import { assembleTable, rowJob, type RowBlock, type TableOptions } from './table
 import { resolveTableSpec, type TableSpecInput } from './tableSpec.js';
 import type { LookupTable } from './tableResult.js';
 import type { RowTask } from './tableWorker.js';
-import { workerScript } from './workerScript.js';
+import { workerScript, type WorkerScript } from './workerScript.js';
 
 export interface TablePoolOptions {
   /** Worker threads (default: available parallelism). */
@@ -24,15 +26,17 @@ export interface TablePoolOptions {
   idleTimeoutMs?: number;
 }
 
-/** A pool of table workers; share one per process and close it on shutdown. */
+/** A pool of worker threads for tables (and other jobs); share one per process and close it on shutdown. */
 export class TablePool {
   readonly threads: number;
-  private readonly pool: Piscina<RowTask, RowBlock>;
+  private readonly pool: Piscina<unknown, unknown>;
+  private readonly execArgv: readonly string[];
 
   constructor(options: TablePoolOptions = {}) {
     this.threads = Math.max(1, Math.floor(options.threads ?? availableParallelism()));
     const script = workerScript(import.meta.url, 'tableWorker');
-    this.pool = new Piscina<RowTask, RowBlock>({
+    this.execArgv = script.execArgv;
+    this.pool = new Piscina<unknown, unknown>({
       filename: script.filename,
       execArgv: script.execArgv,
       minThreads: 0,
@@ -41,8 +45,21 @@ export class TablePool {
     });
   }
 
+  /** Solves one block of table rows. */
   run(task: RowTask, signal?: AbortSignal): Promise<RowBlock> {
-    return this.pool.run(task, signal ? { signal } : {});
+    return this.pool.run(task, signal ? { signal } : {}) as Promise<RowBlock>;
+  }
+
+  /**
+   * Runs one task of another worker script (found by {@link workerScript}; its default export
+   * gets the task) on these threads. The script must load the way the table worker does
+   * (both compiled, or both through tsx).
+   */
+  runScript<T, R>(script: WorkerScript, task: T, signal?: AbortSignal): Promise<R> {
+    if (script.execArgv.join('\0') !== this.execArgv.join('\0')) {
+      return Promise.reject(new Error(`worker script ${script.filename} needs other thread options than the pool's`));
+    }
+    return this.pool.run(task, { filename: script.filename, ...(signal ? { signal } : {}) }) as Promise<R>;
   }
 
   close(): Promise<void> {

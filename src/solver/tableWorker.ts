@@ -2,26 +2,33 @@
  * Worker-thread entry for table rows (run by piscina from tablePool.ts). Each task carries the
  * drivetrain document and the two canonical machine maps (plain data); the drivetrain is
  * rebuilt here once per key and cached. Returns the solved rows with their buffers transferred.
+ * Other worker scripts run on the same threads (cycle requests: src/api/cycleWorker.ts) share
+ * the cache through {@link drivetrainFor}.
  */
 import { move, transferableSymbol, valueSymbol } from 'piscina';
 import type { MachineMap } from '../machine/map.js';
 import { buildDrivetrain, type Drivetrain, type DrivetrainDoc } from './drivetrain.js';
 import { blockBuffers, computeRows, type RowBlock, type RowJob } from './table.js';
 
-export interface RowTask {
-  /** Cache key of the drivetrain (content hash, or unique per table when none is given). */
+/** A drivetrain sent to a worker as plain data: its document and canonical machine maps. */
+export interface DrivetrainRef {
+  /** Cache key of the drivetrain (content hash, or unique per job when none is given). */
   key: string;
   name: string;
   doc: DrivetrainDoc;
   sun: MachineMap;
   ring: MachineMap;
+}
+
+export interface RowTask extends DrivetrainRef {
   job: RowJob;
 }
 
 const CACHE_SIZE = 4;
 const cache = new Map<string, Drivetrain>();
 
-function drivetrainFor(task: RowTask): Drivetrain {
+/** The drivetrain of a task, rebuilt from its document and maps once per key (a few kept per thread). */
+export function drivetrainFor(task: DrivetrainRef): Drivetrain {
   const hit = cache.get(task.key);
   if (hit) return hit;
   const maps = new Map([

@@ -6,7 +6,14 @@ import { existsSync } from 'node:fs';
 import { createRequire } from 'node:module';
 import { fileURLToPath, pathToFileURL } from 'node:url';
 
-export function workerScript(moduleUrl: string, name: string): { filename: string; execArgv: string[] } {
+export interface WorkerScript {
+  /** File URL of the script. */
+  filename: string;
+  /** Node options each worker thread needs to load it. */
+  execArgv: string[];
+}
+
+export function workerScript(moduleUrl: string, name: string): WorkerScript {
   const js = new URL(`./${name}.js`, moduleUrl);
   if (existsSync(fileURLToPath(js))) return { filename: js.href, execArgv: [] };
   const ts = new URL(`./${name}.ts`, moduleUrl);

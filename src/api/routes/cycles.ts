@@ -1,15 +1,20 @@
-/** Drive cycles: built-in list; energy over a cycle with layout comparison and the cycle-optimal bound. */
+/**
+ * Drive cycles: built-in list; energy over a cycle with layout comparison and the cycle-optimal
+ * bound. Requests are checked here (cycle, vehicle, work cap); the solving and the rendering of
+ * the body (JSON or SVG) run on the app's worker pool, so the event loop keeps answering other
+ * requests meanwhile.
+ */
+import type { FastifyInstance } from 'fastify';
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
 import { z } from 'zod';
-import { cycleBounds } from '../../vehicle/bound.js';
-import { runCycle, type CycleResult } from '../../vehicle/cycleEnergy.js';
+import { runCycleJob, type CycleJobAnswer, type CycleJobOptions } from '../../vehicle/cycleJob.js';
 import { listBuiltinCycles } from '../../vehicle/cycles.js';
-import { compareLayouts } from '../../vehicle/compare.js';
-import { parseCycleCsv, parseCycleInput, vehicleSchema, type Cycle } from '../../vehicle/schema.js';
-import { plotCycle } from '../../report/svg/plotCycle.js';
+import { parseCycleCsv, parseCycleInput, vehicleSchema, type Cycle, type Vehicle } from '../../vehicle/schema.js';
 import type { Drivetrain } from '../../solver/drivetrain.js';
 import type { Mode } from '../../solver/types.js';
 import { parseOrThrow } from '../../problem.js';
+import { cycleBodyPooled } from '../cycleRunner.js';
+import type { CycleBodyFormat } from '../cycleWorker.js';
 import { ApiError } from '../errors.js';
 import { errorBodySchema, nameParams } from '../schemas.js';
 import { drivetrainOr404 } from './common.js';
@@ -45,13 +50,22 @@ export function resolveCycleBody(cycle: unknown): Cycle {
 
 /**
  * Most cycle steps one request may solve, counting every run it asks for (the cycle, the four
- * layouts of a comparison, the bound). Cycles run on the event loop, so this keeps a request to a
- * few seconds; longer jobs belong to the command line (`episplit cycle`).
+ * layouts of a comparison, the bound; the job itself shares runs where the answer allows, so it
+ * solves at most this many). The job runs on a worker thread, but it holds a thread and a job
+ * slot while it runs: this keeps a request to a few seconds; longer jobs belong to the command
+ * line (`episplit cycle`).
  */
 export const MAX_CYCLE_WORK_STEPS = 100_000;
 
-/** Runs what a cycle request asks for; plain objects only (typed arrays removed). */
-export function answerCycle(dt: Drivetrain, body: CycleRequest) {
+/** A checked cycle request, ready to run in process or on a worker. */
+export interface PreparedCycleJob {
+  vehicle: Vehicle;
+  cycle: Cycle;
+  options: CycleJobOptions;
+}
+
+/** Resolves the request's cycle and refuses work beyond {@link MAX_CYCLE_WORK_STEPS} (cheap; on the calling thread). */
+export function prepareCycleJob(body: CycleRequest): PreparedCycleJob {
   const cycle = resolveCycleBody(body.cycle);
   const steps = cycle.timeS.length - 1;
   const runs = 1 + (body.compare ? 4 : 0) + (body.switchCostsWh ? 1 : 0);
@@ -62,19 +76,28 @@ export function answerCycle(dt: Drivetrain, body: CycleRequest) {
       'cycle',
     );
   }
-  const solve = body.modes ? { modes: body.modes as Mode[] } : {};
-  const result: CycleResult = runCycle(dt, body.vehicle, cycle, {
-    solve,
-    series: body.series,
-    ...(body.usableBatteryWh !== undefined ? { usableBatteryWh: body.usableBatteryWh } : {}),
-  });
-  delete result.modeEnergyWh;
-  delete result.modeIndex;
   return {
-    result,
-    ...(body.compare ? { comparison: compareLayouts(dt, body.vehicle, cycle, { solve }) } : {}),
-    ...(body.switchCostsWh ? { bounds: cycleBounds(dt, body.vehicle, cycle, body.switchCostsWh, { solve }) } : {}),
+    vehicle: body.vehicle,
+    cycle,
+    options: {
+      compare: body.compare,
+      series: body.series,
+      ...(body.modes ? { modes: body.modes as Mode[] } : {}),
+      ...(body.switchCostsWh ? { switchCostsWh: body.switchCostsWh } : {}),
+      ...(body.usableBatteryWh !== undefined ? { usableBatteryWh: body.usableBatteryWh } : {}),
+    },
   };
+}
+
+/** Runs what a cycle request asks for, in process; plain objects only. The routes run the same job on a worker. */
+export function answerCycle(dt: Drivetrain, body: CycleRequest): CycleJobAnswer {
+  const job = prepareCycleJob(body);
+  return runCycleJob(dt, job.vehicle, job.cycle, job.options);
+}
+
+/** The body of a cycle route, solved and rendered on the app's worker pool (the event loop stays free). */
+function pooledBody(app: FastifyInstance, dt: Drivetrain, dtHash: string, job: PreparedCycleJob, format: CycleBodyFormat): Promise<string> {
+  return app.jobs.run('cycle', () => cycleBodyPooled(app.workers.get(), dt, job, format, { key: dtHash }));
 }
 
 /** Body limit and error codes shared by the routes that take a cycle request. */
@@ -122,9 +145,13 @@ export const cycleRoutes: FastifyPluginAsyncZod = async (app) => {
         },
       },
     },
-    async (req) => {
-      const { dt } = drivetrainOr404(app, req.params.name);
-      return app.jobs.run('cycle', () => answerCycle(dt, req.body));
+    async (req, reply) => {
+      const { dt, hash } = drivetrainOr404(app, req.params.name);
+      const job = prepareCycleJob(req.body);
+      // The worker renders the answer as JSON text (JSON.stringify, as the app's serializer
+      // does); fastify sends a string with a JSON content type as it is.
+      const body = await pooledBody(app, dt, hash, job, 'json');
+      return reply.type('application/json; charset=utf-8').send(body as unknown as CycleJobAnswer);
     },
   );
 
@@ -141,11 +168,9 @@ export const cycleRoutes: FastifyPluginAsyncZod = async (app) => {
       },
     },
     async (req, reply) => {
-      const { dt } = drivetrainOr404(app, req.params.name);
-      const svg = await app.jobs.run('cycle', () => {
-        const { result } = answerCycle(dt, { ...req.body, compare: false, switchCostsWh: undefined, series: true });
-        return plotCycle(result, { title: `${dt.name}: ${result.cycle}` });
-      });
+      const { dt, hash } = drivetrainOr404(app, req.params.name);
+      const job = prepareCycleJob({ ...req.body, compare: false, switchCostsWh: undefined, series: true });
+      const svg = await pooledBody(app, dt, hash, job, 'svg');
       return reply.type('image/svg+xml; charset=utf-8').send(svg);
     },
   );
