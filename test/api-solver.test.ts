@@ -41,6 +41,44 @@ describe('drivetrains and operating points over HTTP', () => {
     expect(r.body.results[0].feasible).toBe(true);
   });
 
+  it('answers one point by GET exactly as the batch route and the in-process solver', async () => {
+    const dt = ctx.srv.app.registry.getDrivetrain('van-axle')!;
+    const cases: Array<[string, number, number, object]> = [
+      ['wheelSpeedRpm=400&wheelTorqueNm=600', 400, 600, {}],
+      ['wheelSpeedRpm=-120.5&wheelTorqueNm=-300&strict=true', -120.5, -300, { strict: true }],
+      ['wheelSpeedRpm=900&wheelTorqueNm=-2400&alternatives=false', 900, -2400, { alternatives: false }],
+      ['wheelSpeedRpm=1.2e3&wheelTorqueNm=5000&modes=split,locked', 1200, 5000, { modes: ['split', 'locked'] }],
+    ];
+    for (const [query, n, t, opts] of cases) {
+      const one = await request(ctx.srv.url).get(`/v1/drivetrains/van-axle/operating-point?${query}`).expect(200);
+      const batch = await request(ctx.srv.url)
+        .post('/v1/drivetrains/van-axle/operating-points')
+        .send({ points: [{ wheelSpeedRpm: n, wheelTorqueNm: t }], ...opts })
+        .expect(200);
+      expect(one.body).toEqual(batch.body.results[0]);
+      expect(one.body).toEqual(JSON.parse(JSON.stringify(solvePoint(dt, n, t, opts))));
+    }
+  });
+
+  it('refuses a bad single-point query with the field path, never reading an empty value as 0', async () => {
+    const bad: Array<[string, string]> = [
+      ['wheelSpeedRpm=&wheelTorqueNm=600', 'querystring.wheelSpeedRpm'],
+      ['wheelTorqueNm=600', 'querystring.wheelSpeedRpm'],
+      ['wheelSpeedRpm=400&wheelTorqueNm=6OO', 'querystring.wheelTorqueNm'],
+      ['wheelSpeedRpm=2e6&wheelTorqueNm=1', 'querystring.wheelSpeedRpm'],
+      ['wheelSpeedRpm=1&wheelTorqueNm=1&modes=split,warp', 'querystring.modes'],
+      ['wheelSpeedRpm=1&wheelTorqueNm=1&strict=yes', 'querystring.strict'],
+      ['wheelSpeedRpm=1&wheelSpeedRpm=2&wheelTorqueNm=1', 'querystring.wheelSpeedRpm'],
+    ];
+    for (const [query, path] of bad) {
+      const r = await request(ctx.srv.url).get(`/v1/drivetrains/van-axle/operating-point?${query}`).expect(400);
+      expect(r.body.error.code).toBe('invalid-request');
+      expect(r.body.error.path).toBe(path);
+    }
+    const none = await request(ctx.srv.url).get('/v1/drivetrains/nothing/operating-point?wheelSpeedRpm=1&wheelTorqueNm=1').expect(404);
+    expect(none.body.error.code).toBe('not-found');
+  });
+
   it('calls a launch beyond the limit motoring in either direction (power to the wheels at standstill)', async () => {
     const r = await request(ctx.srv.url)
       .post('/v1/drivetrains/van-axle/operating-points')

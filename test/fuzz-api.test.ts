@@ -276,6 +276,12 @@ const queryArb: fc.Arbitrary<string> = fc.oneof(
       '?kind=points',
       '?kind=dq-model',
       '?kind=grid&kind=points',
+      '?wheelSpeedRpm=400&wheelTorqueNm=800',
+      '?wheelSpeedRpm=&wheelTorqueNm=1',
+      '?wheelSpeedRpm=1e400&wheelTorqueNm=0',
+      '?wheelSpeedRpm=0x10&wheelTorqueNm=1',
+      '?wheelSpeedRpm=1&wheelSpeedRpm=2&wheelTorqueNm=3',
+      '?wheelSpeedRpm=-0&wheelTorqueNm=-1e8&strict=true&alternatives=false&modes=split,locked',
       '?__proto__[x]=1',
       '?constructor=1',
       '?&&==',
@@ -375,6 +381,7 @@ const ROUTES: FuzzRoute[] = [
   route('DELETE', '/v1/drivetrains/{name}'),
   route('POST', '/v1/drivetrains/{name}/operating-points', solveBodyArb),
   route('POST', '/v1/operating-points', inlineBodyArb),
+  route('GET', '/v1/drivetrains/{name}/operating-point'),
   route('POST', '/v1/drivetrains/{name}/tables', tableBodyArb),
   route('GET', '/v1/drivetrains/{name}/plot.svg'),
   route('GET', '/v1/machines/{name}/plot.svg'),
@@ -574,6 +581,34 @@ describe('HTTP fuzzing: no 5xx, catalogue error bodies, failed writes change not
         let i = 0;
         const p = rt.path.replace(/\{[^}]+\}/g, () => names[i++ % names.length]!) + query;
         await exercise(srv, state, method, p, body);
+      }),
+      runs(150),
+    );
+  });
+
+  it('GET /v1/drivetrains/{name}/operating-point: random query values', async () => {
+    await ensureSeeds();
+    const value = fc.oneof(
+      fc.double().map(String),
+      fc.integer({ min: -3000, max: 3000 }).map(String),
+      fc.constantFrom('', ' ', 'NaN', 'Infinity', '-', '1e', '.', '1,5', '١٢', '%00', '1%20', 'true', 'split,locked', 'split,,locked'),
+    );
+    const arb = fc.record(
+      {
+        wheelSpeedRpm: value,
+        wheelTorqueNm: value,
+        modes: fc.oneof(value, fc.constantFrom('split', 'locked,split', 'ring-held,sun-held', 'warp')),
+        strict: fc.oneof(value, fc.constantFrom('true', 'false')),
+        alternatives: fc.oneof(value, fc.constantFrom('true', 'false')),
+      },
+      { requiredKeys: [] },
+    );
+    await fc.assert(
+      fc.asyncProperty(fc.constantFrom(...DRIVETRAIN_NAMES), arb, async (name, q) => {
+        const query = Object.entries(q)
+          .map(([k, v]) => `${k}=${encodeURIComponent(v as string)}`)
+          .join('&');
+        await exercise(srv, state, 'GET', `/v1/drivetrains/${name}/operating-point?${query}`, {});
       }),
       runs(150),
     );

@@ -1,12 +1,12 @@
-/** The optimum at wheel operating points, for a stored drivetrain or one sent inline. */
+/** The optimum at wheel operating points: a batch for a stored drivetrain or one sent inline, or one point by GET. */
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
 import { z } from 'zod';
-import { solvePoints } from '../../solver/point.js';
+import { solvePoint, solvePoints } from '../../solver/point.js';
 import type { Drivetrain } from '../../solver/drivetrain.js';
 import type { Mode, PointResult } from '../../solver/types.js';
 import { ApiError } from '../errors.js';
 import { errorBodySchema, nameParams } from '../schemas.js';
-import { pointResultSchema, solveOptionsSchema, wheelPointSchema } from './solverSchemas.js';
+import { pointQuerySchema, pointResultSchema, solveOptionsSchema, wheelPointSchema } from './solverSchemas.js';
 
 const BATCH_BODY_LIMIT = 64 * 1024 * 1024;
 /** Large batches are solved in chunks of this many points, yielding to the event loop between them. */
@@ -56,6 +56,26 @@ export const operatingPointRoutes: FastifyPluginAsyncZod = async (app) => {
       const dt = app.registry.getDrivetrain(req.params.name);
       if (!dt) throw new ApiError('not-found', `no drivetrain named "${req.params.name}"`);
       return answer(dt, req.body.points, req.body.modes, req.body.strict, req.body.alternatives);
+    },
+  );
+
+  app.get(
+    '/drivetrains/:name/operating-point',
+    {
+      schema: {
+        tags: ['solver'],
+        summary: 'Optimal split at one wheel point, given in the query (for simulations stepping point by point)',
+        params: nameParams,
+        querystring: pointQuerySchema,
+        response: { 200: pointResultSchema, 400: errorBodySchema, 404: errorBodySchema },
+      },
+    },
+    async (req) => {
+      const dt = app.registry.getDrivetrain(req.params.name);
+      if (!dt) throw new ApiError('not-found', `no drivetrain named "${req.params.name}"`);
+      const q = req.query;
+      app.metrics.solverPoints.inc(1);
+      return solvePoint(dt, q.wheelSpeedRpm, q.wheelTorqueNm, q.modes ? { modes: q.modes, strict: q.strict, alternatives: q.alternatives } : { strict: q.strict, alternatives: q.alternatives });
     },
   );
 
