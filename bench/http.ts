@@ -1,21 +1,26 @@
 /**
- * HTTP throughput of the service on loopback: `GET /health` against a single-point
- * `POST /v1/drivetrains/van-axle/operating-points` (autocannon, load generator in a worker thread,
- * interleaved in rounds so that all see the same machine load) with two point mixes: a spread over
- * the whole speed × torque box (a third of the points beyond the limits, the costly answers) and
- * the wheel demand of an invented delivery van over the NEDC (what a vehicle simulation asks);
- * then a 10 000-point batch over HTTP against the same points solved in process.
+ * HTTP throughput of the service on loopback. The server is the compiled build in a child
+ * process (`node dist/server.js`, as `npm start` runs it; build first); autocannon loads it from
+ * this process. In each round every endpoint gets the same time, one after the other, so all see
+ * the same machine load; each figure is the median over rounds of the ratio against `GET /health`
+ * in the same round. Endpoints: single points by GET (a spread over the speed × torque box, a
+ * third beyond the limits; the wheel demand of an invented delivery van over the NEDC, with and
+ * without alternatives) and by POST (the spread, one point per body). Beside throughput, the
+ * server's own CPU time per request (from its /metrics) gives the cost ratio, which is what the
+ * throughput ratio tends to when the server alone is the bottleneck. Then a 10 000-point batch
+ * over HTTP against the same points solved in this process.
  *
- * Run alone: `npx tsx bench/http.ts`. Figures are ratios within one run; absolute rates depend on
- * the machine and on whatever else runs on it.
+ * Run alone: `npm run build && npx tsx bench/http.ts`. Figures are ratios within one run;
+ * absolute rates depend on the machine and on whatever else runs on it.
  */
+import { spawn, type ChildProcess } from 'node:child_process';
 import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { pathToFileURL } from 'node:url';
 import autocannon from 'autocannon';
-import { buildApp } from '../src/api/app.js';
-import { configFromEnv } from '../src/config.js';
+import { freePort } from '../test/support/freePort.js';
+import { Registry } from '../src/store/registry.js';
 import { describeDrivetrain } from '../src/solver/drivetrain.js';
 import { solvePoints, type WheelPoint } from '../src/solver/point.js';
 import { radSToRpm } from '../src/units.js';
@@ -25,14 +30,16 @@ import { parseVehicle } from '../src/vehicle/schema.js';
 import { prng } from './prng.js';
 import { median } from './stats.js';
 
-const MAPS_DIR = path.resolve(import.meta.dirname, '../maps');
+const ROOT = path.resolve(import.meta.dirname, '..');
+const MAPS_DIR = path.join(ROOT, 'maps');
+const SERVER = path.join(ROOT, 'dist/server.js');
 const DRIVETRAIN = 'van-axle';
 
 export interface HttpBenchOptions {
-  /** Seconds of load per endpoint, split over the rounds (default 10, at most 60). */
-  durationS?: number;
-  /** Interleaved rounds per endpoint (default 2). */
+  /** Rounds (default 6, at most 20). */
   rounds?: number;
+  /** Seconds of load per endpoint and round (default 1.5, 0.5 to 10). */
+  roundS?: number;
   /** Concurrent connections (default 4). */
   connections?: number;
   /** Points in the batch comparison (default 10 000, at most 200 000). */
@@ -43,13 +50,19 @@ export interface HttpBenchOptions {
   log?: (line: string) => void;
 }
 
-export interface LoadFigures {
-  /** Requests answered per second over all rounds. */
+export interface EndpointFigures {
+  label: string;
+  /** Requests answered per second, all rounds together. */
   reqPerS: number;
+  /** Median over rounds of this endpoint's req/s divided by /health's in the same round. */
+  toHealth: number;
+  /** Server CPU time per request, µs (median over rounds). */
+  cpuUsPerReq: number;
+  /** /health's CPU per request divided by this endpoint's (median over rounds). */
+  costToHealth: number;
+  p50Ms: number;
   /** Largest p99 latency of the rounds, ms. */
   p99Ms: number;
-  /** Median latency of the rounds' medians, ms. */
-  p50Ms: number;
   requests: number;
   non2xx: number;
   errors: number;
@@ -57,16 +70,7 @@ export interface LoadFigures {
 }
 
 export interface Figures {
-  health: LoadFigures;
-  singlePoint: LoadFigures;
-  /** singlePoint.reqPerS / health.reqPerS (target >= 0.5). */
-  singlePointToHealth: number;
-  /** Single points from a drive cycle's wheel demand. */
-  cyclePoint: LoadFigures;
-  cyclePointToHealth: number;
-  /** The drive-cycle points with `alternatives: false`. */
-  leanPoint: LoadFigures;
-  leanPointToHealth: number;
+  endpoints: EndpointFigures[];
   batch: {
     points: number;
     /** Median time from sending the request to the last byte of the answer, ms. */
@@ -77,11 +81,8 @@ export interface Figures {
     inProcessMs: number;
     /** httpMs / inProcessMs (target <= 10). */
     ratio: number;
-    httpRunsMs: number[];
-    inProcessRunsMs: number[];
   };
 }
-
 
 /**
  * Wheel points spread over the drivetrain's working range: speed 0–95 % of its top wheel speed,
@@ -104,97 +105,126 @@ function cannon(opts: autocannon.Options): Promise<autocannon.Result> {
   });
 }
 
-function combine(results: autocannon.Result[]): LoadFigures {
-  const requests = results.reduce((s, r) => s + r.requests.total, 0);
-  const seconds = results.reduce((s, r) => s + r.duration, 0);
-  return {
-    reqPerS: requests / seconds,
-    p99Ms: Math.max(...results.map((r) => r.latency.p99)),
-    p50Ms: median(results.map((r) => r.latency.p50)),
-    requests,
-    non2xx: results.reduce((s, r) => s + r.non2xx, 0),
-    errors: results.reduce((s, r) => s + r.errors, 0),
-    timeouts: results.reduce((s, r) => s + r.timeouts, 0),
-  };
+/** The server's CPU seconds so far, read from its Prometheus metrics. */
+async function serverCpuS(base: string): Promise<number> {
+  const text = await (await fetch(`${base}/metrics`)).text();
+  const m = /^process_cpu_seconds_total\s+([0-9.eE+-]+)$/m.exec(text);
+  if (!m) throw new Error('process_cpu_seconds_total is missing from /metrics');
+  return Number(m[1]);
+}
+
+async function startServer(port: number, dataDir: string, maxBatchPoints: number): Promise<ChildProcess> {
+  const child = spawn(process.execPath, [SERVER], {
+    env: { ...process.env, PORT: String(port), HOST: '127.0.0.1', MAPS_DIR, DATA_DIR: dataDir, LOG_LEVEL: 'warn', MAX_BATCH_POINTS: String(maxBatchPoints) },
+    stdio: ['ignore', 'ignore', 'inherit'],
+  });
+  const deadline = Date.now() + 30_000;
+  for (;;) {
+    if (child.exitCode !== null) throw new Error(`the server exited with ${child.exitCode} (run npm run build first)`);
+    try {
+      if ((await fetch(`http://127.0.0.1:${port}/ready`)).status === 200) return child;
+    } catch {
+      // not listening yet
+    }
+    if (Date.now() > deadline) {
+      child.kill('SIGKILL');
+      throw new Error('the server did not get ready within 30 s');
+    }
+    await new Promise((r) => setTimeout(r, 100));
+  }
+}
+
+interface Endpoint {
+  label: string;
+  requests: autocannon.Request[];
+}
+
+interface RoundFigure {
+  rps: number;
+  cpuUs: number;
+  result: autocannon.Result;
 }
 
 export async function runHttpBench(opts: HttpBenchOptions = {}): Promise<Figures> {
   const log = opts.log ?? ((line: string) => console.log(line));
-  const durationS = clamp(opts.durationS ?? 10, 1, 60);
-  const rounds = clamp(Math.round(opts.rounds ?? 2), 1, 10);
+  const rounds = clamp(Math.round(opts.rounds ?? 6), 1, 20);
+  const roundS = clamp(opts.roundS ?? 1.5, 0.5, 10);
   const connections = clamp(Math.round(opts.connections ?? 4), 1, 64);
   const batchPoints = clamp(Math.round(opts.batchPoints ?? 10_000), 1, 200_000);
   const batchRepeats = clamp(Math.round(opts.batchRepeats ?? 3), 1, 9);
-  const roundS = Math.max(1, Math.round(durationS / rounds));
 
+  // The same drivetrain in this process, for the points and the in-process baseline.
   const dataDir = mkdtempSync(path.join(tmpdir(), 'episplit-bench-'));
-  const config = { ...configFromEnv({}), mapsDir: MAPS_DIR, dataDir, host: '127.0.0.1', port: 0, maxBatchPoints: Math.max(200_000, batchPoints) };
-  const app = await buildApp({ config, logger: false });
-  try {
-    await app.listen({ host: '127.0.0.1', port: 0 });
-    const addr = app.server.address();
-    if (!addr || typeof addr === 'string') throw new Error('no loopback address');
-    const base = `http://127.0.0.1:${addr.port}`;
-    const dt = app.registry.getDrivetrain(DRIVETRAIN);
-    if (!dt) throw new Error(`drivetrain ${DRIVETRAIN} is not loaded from ${MAPS_DIR}`);
-    const facts = describeDrivetrain(dt);
+  const registry = new Registry({ mapsDir: MAPS_DIR, dataDir });
+  await registry.load();
+  const dt = registry.getDrivetrain(DRIVETRAIN);
+  if (!dt) throw new Error(`drivetrain ${DRIVETRAIN} is not loaded from ${MAPS_DIR}`);
+  const facts = describeDrivetrain(dt);
 
-    const route = `/v1/drivetrains/${DRIVETRAIN}/operating-points`;
-    const single = spreadPoints(256, facts.maxWheelSpeedRpm, facts.standstillMaxWheelNm, 7).map((p) => ({
-      method: 'POST' as const,
-      path: route,
-      headers: { 'content-type': 'application/json' },
-      body: JSON.stringify({ points: [p] }),
-    }));
+  const port = await freePort();
+  const base = `http://127.0.0.1:${port}`;
+  const child = await startServer(port, dataDir, Math.max(200_000, batchPoints));
+  try {
+    const batchRoute = `/v1/drivetrains/${DRIVETRAIN}/operating-points`;
+    const oneRoute = `/v1/drivetrains/${DRIVETRAIN}/operating-point`;
+    const get = (p: WheelPoint, extra = '') => ({ method: 'GET' as const, path: `${oneRoute}?wheelSpeedRpm=${p.wheelSpeedRpm}&wheelTorqueNm=${p.wheelTorqueNm}${extra}` });
+    const spread = spreadPoints(256, facts.maxWheelSpeedRpm, facts.standstillMaxWheelNm, 7);
     // The NEDC wheel demand of an invented 2.6 t delivery van (our own demo scenario).
     const van = parseVehicle({ massKg: 2600, rotatingMassFactor: 0.05, rollingResistance: 0.011, dragAreaM2: 1.9, auxiliaryW: 400 });
     const demand = cycleWheelDemand(van, getBuiltinCycle('nedc'), dt.wheelRadiusM);
-    const cycleRequests = (extra: object) =>
-      Array.from({ length: demand.steps }, (_, k) => ({
-        method: 'POST' as const,
-        path: route,
-        headers: { 'content-type': 'application/json' },
-        body: JSON.stringify({ points: [{ wheelSpeedRpm: radSToRpm(demand.wheelSpeedRadS[k]!), wheelTorqueNm: demand.wheelTorqueNm[k]! }], ...extra }),
-      }));
-    const fromCycle = cycleRequests({});
-    const common = { url: base, connections, workers: 1 };
-    const health = { ...common, requests: [{ method: 'GET' as const, path: '/health' }] };
-    const point = { ...common, requests: single };
-    const cyclePoint = { ...common, requests: fromCycle };
-    const leanPoint = { ...common, requests: cycleRequests({ alternatives: false }) };
+    const cyclePoints = Array.from({ length: demand.steps }, (_, k) => ({ wheelSpeedRpm: radSToRpm(demand.wheelSpeedRadS[k]!), wheelTorqueNm: demand.wheelTorqueNm[k]! }));
+    const endpoints: Endpoint[] = [
+      { label: 'GET /health', requests: [{ method: 'GET', path: '/health' }] },
+      { label: `GET ${oneRoute} (spread over the speed × torque box, 256 points)`, requests: spread.map((p) => get(p)) },
+      {
+        label: `POST ${batchRoute} (the same spread, 1 point per body)`,
+        requests: spread.map((p) => ({ method: 'POST' as const, path: batchRoute, headers: { 'content-type': 'application/json' }, body: JSON.stringify({ points: [p] }) })),
+      },
+      { label: `GET ${oneRoute} (NEDC wheel demand of the demo van, ${cyclePoints.length} points)`, requests: cyclePoints.map((p) => get(p)) },
+      { label: `GET ${oneRoute} (the same drive-cycle points, alternatives=false)`, requests: cyclePoints.map((p) => get(p, '&alternatives=false')) },
+    ];
 
-    log(`http bench: loopback ${base}, ${connections} connections, ${rounds} × ${roundS} s per endpoint (interleaved), load generator in a worker thread`);
-    // Warm-up (JIT, connection set-up); not counted.
-    await cannon({ ...health, duration: 1 });
-    await cannon({ ...point, duration: 1 });
-    await cannon({ ...cyclePoint, duration: 1 });
-    await cannon({ ...leanPoint, duration: 1 });
-    const h: autocannon.Result[] = [];
-    const s: autocannon.Result[] = [];
-    const c: autocannon.Result[] = [];
-    const l: autocannon.Result[] = [];
-    for (let i = 0; i < rounds; i++) {
-      h.push(await cannon({ ...health, duration: roundS }));
-      s.push(await cannon({ ...point, duration: roundS }));
-      c.push(await cannon({ ...cyclePoint, duration: roundS }));
-      l.push(await cannon({ ...leanPoint, duration: roundS }));
+    log(`http bench: server ${SERVER} (child process) on ${base}; autocannon in this process, ${connections} connections; ${rounds} rounds × ${roundS} s per endpoint`);
+    const run = async (e: Endpoint, seconds: number): Promise<RoundFigure> => {
+      const c0 = await serverCpuS(base);
+      const result = await cannon({ url: base, connections, duration: seconds, requests: e.requests });
+      const c1 = await serverCpuS(base);
+      const n = Math.max(1, result.requests.total);
+      return { rps: result.requests.total / result.duration, cpuUs: ((c1 - c0) * 1e6) / n, result };
+    };
+    for (const e of endpoints) await run(e, 1); // warm-up: JIT, connections; not counted
+    const per: RoundFigure[][] = endpoints.map(() => []);
+    for (let r = 0; r < rounds; r++) for (let i = 0; i < endpoints.length; i++) per[i]!.push(await run(endpoints[i]!, roundS));
+
+    const health = per[0]!;
+    const figures: EndpointFigures[] = endpoints.map((e, i) => {
+      const rs = per[i]!;
+      const results = rs.map((x) => x.result);
+      const requests = results.reduce((s, x) => s + x.requests.total, 0);
+      return {
+        label: e.label,
+        reqPerS: requests / results.reduce((s, x) => s + x.duration, 0),
+        toHealth: median(rs.map((x, k) => x.rps / health[k]!.rps)),
+        cpuUsPerReq: median(rs.map((x) => x.cpuUs)),
+        costToHealth: median(rs.map((x, k) => health[k]!.cpuUs / x.cpuUs)),
+        p50Ms: median(results.map((x) => x.latency.p50)),
+        p99Ms: Math.max(...results.map((x) => x.latency.p99)),
+        requests,
+        non2xx: results.reduce((s, x) => s + x.non2xx, 0),
+        errors: results.reduce((s, x) => s + x.errors, 0),
+        timeouts: results.reduce((s, x) => s + x.timeouts, 0),
+      };
+    });
+    for (const f of figures) {
+      log(
+        `${f.label}: ${f.reqPerS.toFixed(0)} req/s, ${f.toHealth.toFixed(2)} of /health; server CPU ${f.cpuUsPerReq.toFixed(0)} µs/request, cost ratio ${f.costToHealth.toFixed(2)}; ` +
+          `p50 ${f.p50Ms.toFixed(1)} ms, p99 ${f.p99Ms.toFixed(1)} ms (worst round); ${f.requests} requests, non-2xx ${f.non2xx}, errors ${f.errors}, timeouts ${f.timeouts}`,
+      );
     }
-    const healthFig = combine(h);
-    const pointFig = combine(s);
-    const cycleFig = combine(c);
-    const leanFig = combine(l);
-    const ratio = pointFig.reqPerS / healthFig.reqPerS;
-    const cycleRatio = cycleFig.reqPerS / healthFig.reqPerS;
-    const leanRatio = leanFig.reqPerS / healthFig.reqPerS;
-    const line = (label: string, f: LoadFigures) =>
-      `${label}: ${f.reqPerS.toFixed(0)} req/s, p50 ${f.p50Ms.toFixed(1)} ms, p99 ${f.p99Ms.toFixed(1)} ms (worst round), ${f.requests} requests, non-2xx ${f.non2xx}, errors ${f.errors}, timeouts ${f.timeouts}`;
-    log(line('GET /health', healthFig));
-    log(line(`POST ${route} (1 point, spread over the speed × torque box, 256 rotating bodies)`, pointFig));
-    log(line(`POST ${route} (1 point, NEDC wheel demand of the demo van, ${fromCycle.length} rotating bodies)`, cycleFig));
-    log(line(`POST ${route} (the same drive-cycle points, "alternatives": false)`, leanFig));
-    log(`single point / health: spread ${ratio.toFixed(2)}, drive-cycle points ${cycleRatio.toFixed(2)}, without alternatives ${leanRatio.toFixed(2)} (target >= 0.5)`);
+    const single = figures.slice(1);
+    log(`single point / health, median of rounds (target >= 0.5): ${single.map((f) => f.toHealth.toFixed(2)).join(', ')} (in the order above); cost ratios ${single.map((f) => f.costToHealth.toFixed(2)).join(', ')}`);
 
-    // Batch: HTTP end to end against the solver in process, same points, median of the repeats.
+    // Batch: HTTP end to end against the solver in this process, same points, median of the repeats.
     const points = spreadPoints(batchPoints, facts.maxWheelSpeedRpm, facts.standstillMaxWheelNm, 11);
     const body = JSON.stringify({ points });
     const httpRuns: number[] = [];
@@ -202,7 +232,7 @@ export async function runHttpBench(opts: HttpBenchOptions = {}): Promise<Figures
     const procRuns: number[] = [];
     const postBatch = async () => {
       const t0 = performance.now();
-      const res = await fetch(base + route, { method: 'POST', headers: { 'content-type': 'application/json' }, body });
+      const res = await fetch(base + batchRoute, { method: 'POST', headers: { 'content-type': 'application/json' }, body });
       const text = await res.text();
       const ms = performance.now() - t0;
       if (res.status !== 200) throw new Error(`batch answered ${res.status}: ${text.slice(0, 300)}`);
@@ -228,16 +258,15 @@ export async function runHttpBench(opts: HttpBenchOptions = {}): Promise<Figures
       clientParseMs: median(parseRuns),
       inProcessMs: median(procRuns),
       ratio: median(httpRuns) / median(procRuns),
-      httpRunsMs: httpRuns,
-      inProcessRunsMs: procRuns,
     };
     const runs = (xs: number[]) => xs.map((x) => x.toFixed(0)).join(', ');
     log(`${batchPoints}-point batch over HTTP: ${batch.httpMs.toFixed(0)} ms median of ${batchRepeats} (${runs(httpRuns)}), client JSON parse ${batch.clientParseMs.toFixed(0)} ms more`);
     log(`${batchPoints} points in process (solvePoints): ${batch.inProcessMs.toFixed(0)} ms median of ${batchRepeats} (${runs(procRuns)})`);
     log(`HTTP / in process: ${batch.ratio.toFixed(2)} (target <= 10)`);
-    return { health: healthFig, singlePoint: pointFig, singlePointToHealth: ratio, cyclePoint: cycleFig, cyclePointToHealth: cycleRatio, leanPoint: leanFig, leanPointToHealth: leanRatio, batch };
+    return { endpoints: figures, batch };
   } finally {
-    await app.close();
+    child.kill('SIGTERM');
+    await new Promise((r) => (child.exitCode !== null ? r(null) : child.once('exit', r)));
     rmSync(dataDir, { recursive: true, force: true });
   }
 }

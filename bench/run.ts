@@ -81,5 +81,5 @@ console.log(`cycle of ${cycle.timeS.length - 1} steps: ${cyc.toFixed(1)} ms; bar
 
 // 4. HTTP.
 if (!args.has('--skip-http')) {
-  await runHttpBench(args.has('--quick') ? { durationS: 4, rounds: 2 } : {});
+  await runHttpBench(args.has('--quick') ? { rounds: 3, roundS: 1 } : {});
 }
