@@ -92,7 +92,7 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
   if (!opts.registry) await registry.load();
   app.decorate('registry', registry);
   app.decorate('config', config);
-  // One worker pool for the app: large tables and drive cycles run on its threads.
+  // One worker pool for the app: large tables, drive cycles and heavy machine builds run on its threads.
   const workers = createWorkerPool();
   app.decorate('workers', workers);
   app.decorate('tables', createTableBuilder(workers));

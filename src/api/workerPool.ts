@@ -1,7 +1,7 @@
 /**
- * The app's one pool of worker threads (src/solver/tablePool.ts): large tables and every
- * drive-cycle job run on it, so the event loop keeps answering meanwhile. Created on first use,
- * closed with the app.
+ * The app's one pool of worker threads (src/solver/tablePool.ts): large tables, every
+ * drive-cycle job and heavy machine builds (points fits, dq models, large grids) run on it, so
+ * the event loop keeps answering meanwhile. Created on first use, closed with the app.
  */
 import { TablePool } from '../solver/tablePool.js';
 

@@ -2,13 +2,16 @@
  * The documents the service knows: machine maps and drivetrains, from MAPS_DIR (shipped,
  * read-only) and DATA_DIR (uploaded, persisted). A document in DATA_DIR overrides one of the
  * same name in MAPS_DIR. Every write is validated and built in memory first, then written
- * atomically, then swapped in — a failed write leaves the old document untouched.
+ * atomically, then swapped in — a failed write leaves the old document untouched. A machine PUT
+ * may be given a {@link MachineBuilder} that builds elsewhere (the API's worker pool).
  */
 import { promises as fs } from 'node:fs';
 import path from 'node:path';
 import { loadMachine, parseMachineDoc, type LoadedMachine } from '../machine/load.js';
 import { parseMachineCsv } from '../machine/csv.js';
+import type { MachineMap } from '../machine/map.js';
 import type { MachineDoc } from '../machine/schema.js';
+import type { MachineSummary } from '../machine/summary.js';
 import { ModelError } from '../problem.js';
 import { buildDrivetrain, type Drivetrain, type DrivetrainDoc } from '../solver/drivetrain.js';
 import { documentPath, removeFileDurable, removeStaleTemps, writeFileAtomic } from './files.js';
@@ -70,6 +73,25 @@ function place<E extends { name: string; origin: Origin; shadowed?: E }>(map: Ma
 function unplace<E extends { name: string; shadowed?: E }>(map: Map<string, E>, entry: E): void {
   if (entry.shadowed) map.set(entry.name, entry.shadowed);
   else map.delete(entry.name);
+}
+
+/** A validated machine document built for the registry: canonical map, summary, content hash of the document. */
+export interface BuiltMachine {
+  map: MachineMap;
+  summary: MachineSummary;
+  hash: string;
+}
+
+/**
+ * Builds a validated machine document; it may run elsewhere (the API sends heavy documents to
+ * its worker pool) and throws, or rejects with, the build's ModelError.
+ */
+export type MachineBuilder = (name: string, doc: MachineDoc) => BuiltMachine | Promise<BuiltMachine>;
+
+/** The in-process build: canonical map and summary, content hash of the document. */
+export function buildMachine(name: string, doc: MachineDoc): BuiltMachine {
+  const { map, summary } = loadMachine(name, doc);
+  return { map, summary, hash: contentHash(doc) };
 }
 
 export interface LoadProblem {
@@ -149,7 +171,8 @@ export class Registry {
   }
 
   private installMachine(name: string, doc: MachineDoc, origin: Origin): MachineEntry {
-    const entry: MachineEntry = { ...loadMachine(name, doc), name, origin, hash: contentHash(doc) };
+    const { map, summary, hash } = buildMachine(name, doc);
+    const entry: MachineEntry = { doc, map, summary, name, origin, hash };
     place(this.machines, entry);
     return entry;
   }
@@ -185,14 +208,18 @@ export class Registry {
     return this.machines.get(name);
   }
 
-  /** Validates, builds, writes atomically, then swaps in. Returns whether it was created. */
-  putMachine(name: string, value: unknown): Promise<{ created: boolean; entry: MachineEntry }> {
+  /**
+   * Validates, builds (with `build`, in process by default), writes atomically, then swaps in.
+   * Returns whether it was created. The document is checked against its schema at once; the
+   * build waits its turn with the other writes, so writes land in the order they arrived.
+   */
+  async putMachine(name: string, value: unknown, build: MachineBuilder = buildMachine): Promise<{ created: boolean; entry: MachineEntry }> {
+    const doc = parseMachineDoc(value);
     return this.serialized(async () => {
-      const doc = parseMachineDoc(value);
-      const loaded = loadMachine(name, doc);
+      const { map, summary, hash } = await build(name, doc);
       await writeFileAtomic(documentPath(this.machineDir, name), JSON.stringify(doc, null, 1) + '\n');
       const created = !this.machines.has(name);
-      const entry: MachineEntry = { ...loaded, name, origin: 'data', hash: contentHash(doc) };
+      const entry: MachineEntry = { doc, map, summary, name, origin: 'data', hash };
       place(this.machines, entry);
       this.forgetBuiltUsing(name);
       return { created, entry };

@@ -5,6 +5,7 @@ import { parseMachineCsv } from '../../machine/csv.js';
 import { machineDocSchema } from '../../machine/schema.js';
 import { machineListItem, type MachineEntry } from '../../store/registry.js';
 import { ApiError } from '../errors.js';
+import { pooledMachineBuilder } from '../machineRunner.js';
 import { errorBodySchema, nameParams } from '../schemas.js';
 
 const peak = z.object({ efficiency: z.number(), speedRpm: z.number(), torqueNm: z.number() }).nullable();
@@ -43,6 +44,9 @@ function view(e: MachineEntry) {
 }
 
 export const machineRoutes: FastifyPluginAsyncZod = async (app) => {
+  // Points fits, dq models and large grids are built on the app's worker pool.
+  const build = pooledMachineBuilder(app.workers);
+
   app.get(
     '/machines',
     {
@@ -111,7 +115,7 @@ export const machineRoutes: FastifyPluginAsyncZod = async (app) => {
       },
     },
     async (req, reply) => {
-      const { created, entry } = await app.registry.putMachine(req.params.name, req.body);
+      const { created, entry } = await app.registry.putMachine(req.params.name, req.body, build);
       return reply.code(created ? 201 : 200).send(view(entry));
     },
   );
