@@ -13,6 +13,7 @@ import { MODES } from '../solver/types.js';
 import { CELL_FLOAT_FIELDS, FIELD_UNITS, type LookupTable } from '../solver/tableResult.js';
 import type { TableAxisSpec } from '../solver/tableSpec.js';
 import { TABLE_CAUTION } from './caution.js';
+import { shortestFloat32Text } from './floatText.js';
 
 /** Value written for "no value" in float arrays. */
 export const C_NO_VALUE = -1.0e30;
@@ -29,18 +30,16 @@ export function cPrefix(name: string): string {
   return p;
 }
 
-/** A double as a C float literal with the fewest significant digits that give the same float. */
+/**
+ * A double as a C float literal with the fewest significant digits that give the same float
+ * (see shortestFloat32Text); NaN is the no-value sentinel, values beyond the float range FLT_MAX.
+ */
 export function cFloat(x: number): string {
   if (Number.isNaN(x)) return C_NO_VALUE_LITERAL;
   let f = Math.fround(x);
   if (!Number.isFinite(f)) f = x > 0 ? FLT_MAX : -FLT_MAX;
-  let s = '';
-  for (let p = 1; p <= 9; p++) {
-    s = String(Number(f.toPrecision(p)));
-    if (Math.fround(Number(s)) === f) break;
-  }
-  if (!s.includes('.') && !s.includes('e')) s += '.0';
-  return `${s}f`;
+  const s = shortestFloat32Text(f);
+  return s.includes('.') || s.includes('e') ? `${s}f` : `${s}.0f`;
 }
 
 /** Text safe inside a C block comment (no comment terminator, printable ASCII lines). */
@@ -70,33 +69,43 @@ function snake(field: string): string {
   return field.replace(/[A-Z]/g, (c) => `_${c.toLowerCase()}`);
 }
 
-function* values1(list: string[], indent: string): Generator<string> {
-  for (let k = 0; k < list.length; k += PER_LINE) {
-    const last = k + PER_LINE >= list.length;
-    yield `${indent}${list.slice(k, k + PER_LINE).join(', ')}${last ? '' : ','}\n`;
+/** Text of each uint8 value. */
+const U8_TEXT: readonly string[] = Array.from({ length: 256 }, (_, v) => String(v));
+function u8(x: number): string {
+  return U8_TEXT[x]!;
+}
+
+/** `count` values from `start`, PER_LINE to a line, comma-separated (no comma after the last). */
+function pushValues(out: string[], values: ArrayLike<number>, start: number, count: number, indent: string, fmt: (x: number) => string): void {
+  if (count === 0) return;
+  const lines: string[] = [];
+  const line: string[] = [];
+  for (let j = 0; j < count; j += PER_LINE) {
+    const n = Math.min(PER_LINE, count - j);
+    line.length = n;
+    for (let q = 0; q < n; q++) line[q] = fmt(values[start + j + q]!);
+    lines.push(line.join(', '));
   }
+  out.push(`${indent}${lines.join(`,\n${indent}`)}\n`);
 }
 
-function* array1(decl: string, values: ArrayLike<number>, fmt: (x: number) => string): Generator<string> {
-  yield `${decl} = {\n`;
-  yield* values1(Array.from(values, fmt), '  ');
-  yield '};\n\n';
+function pushArray1(out: string[], decl: string, values: ArrayLike<number>, fmt: (x: number) => string): void {
+  out.push(`${decl} = {\n`);
+  pushValues(out, values, 0, values.length, '  ', fmt);
+  out.push('};\n\n');
 }
 
-function* array2(decl: string, t: LookupTable, values: ArrayLike<number>, fmt: (x: number) => string): Generator<string> {
-  yield `${decl} = {\n`;
+function pushArray2(out: string[], decl: string, t: LookupTable, values: ArrayLike<number>, fmt: (x: number) => string): void {
+  out.push(`${decl} = {\n`);
   for (let i = 0; i < t.nSpeed; i++) {
-    yield '  {\n';
-    const row: string[] = [];
-    for (let j = 0; j < t.nTorque; j++) row.push(fmt(values[i * t.nTorque + j]!));
-    yield* values1(row, '    ');
-    yield i + 1 < t.nSpeed ? '  },\n' : '  }\n';
+    out.push('  {\n');
+    pushValues(out, values, i * t.nTorque, t.nTorque, '    ', fmt);
+    out.push(i + 1 < t.nSpeed ? '  },\n' : '  }\n');
   }
-  yield '};\n\n';
+  out.push('};\n\n');
 }
 
-/** The header in pieces, for streaming large tables. */
-export function* tableCHeaderChunks(t: LookupTable): Generator<string> {
+export function tableToCHeader(t: LookupTable): string {
   const P = cPrefix(t.drivetrain);
   const p = P.toLowerCase();
   const NS = `${P}_N_SPEED`;
@@ -130,30 +139,25 @@ export function* tableCHeaderChunks(t: LookupTable): Generator<string> {
     'Caution:',
     ...wrapCaution(TABLE_CAUTION, 90),
   ];
-  yield '/*\n';
-  for (const line of comment) yield line ? ` * ${commentText(line)}\n` : ' *\n';
-  yield ' */\n';
-  yield `#ifndef ${P}_TABLE_H\n#define ${P}_TABLE_H\n\n#include <stdint.h>\n\n`;
-  yield `#define ${NS} ${t.nSpeed}\n#define ${NT} ${t.nTorque}\n#define ${P}_NO_VALUE ${C_NO_VALUE_LITERAL}\n\n`;
-  yield '/* Unused tables must not warn in a translation unit that uses only some of them. */\n';
-  yield `#if defined(__GNUC__) || defined(__clang__)\n#define ${P}_UNUSED __attribute__((unused))\n#else\n#define ${P}_UNUSED\n#endif\n\n`;
-  yield `typedef enum {\n  ${P}_MODE_NONE = 0,\n`;
+  const out: string[] = ['/*\n'];
+  for (const line of comment) out.push(line ? ` * ${commentText(line)}\n` : ' *\n');
+  out.push(' */\n');
+  out.push(`#ifndef ${P}_TABLE_H\n#define ${P}_TABLE_H\n\n#include <stdint.h>\n\n`);
+  out.push(`#define ${NS} ${t.nSpeed}\n#define ${NT} ${t.nTorque}\n#define ${P}_NO_VALUE ${C_NO_VALUE_LITERAL}\n\n`);
+  out.push('/* Unused tables must not warn in a translation unit that uses only some of them. */\n');
+  out.push(`#if defined(__GNUC__) || defined(__clang__)\n#define ${P}_UNUSED __attribute__((unused))\n#else\n#define ${P}_UNUSED\n#endif\n\n`);
+  out.push(`typedef enum {\n  ${P}_MODE_NONE = 0,\n`);
   const enumLines = MODES.map((m, k) => `  ${P}_MODE_${cPrefix(m)} = ${k + 1}`);
-  yield `${enumLines.join(',\n')}\n} ${p}_mode_t;\n\n`;
+  out.push(`${enumLines.join(',\n')}\n} ${p}_mode_t;\n\n`);
   const F = `static const float ${P}_UNUSED`;
   const U = `static const uint8_t ${P}_UNUSED`;
-  yield* array1(`${F} ${p}_speed_rpm[${NS}]`, t.speedRpm, cFloat);
-  yield* array1(`${F} ${p}_torque_nm[${NT}]`, t.torqueNm, cFloat);
-  yield* array1(`${F} ${p}_max_motoring_wheel_nm[${NS}]`, t.envelope.maxMotoringWheelNm, cFloat);
-  yield* array1(`${F} ${p}_max_braking_wheel_nm[${NS}]`, t.envelope.maxBrakingWheelNm, cFloat);
-  yield* array2(`${U} ${p}_feasible[${NS}][${NT}]`, t, t.cells.feasible, String);
-  yield* array2(`${U} ${p}_mode[${NS}][${NT}]`, t, t.cells.mode, String);
-  for (const f of CELL_FLOAT_FIELDS) yield* array2(`${F} ${p}_${snake(f)}[${NS}][${NT}]`, t, t.cells[f], cFloat);
-  yield `#endif /* ${P}_TABLE_H */\n`;
-}
-
-export function tableToCHeader(t: LookupTable): string {
-  let out = '';
-  for (const chunk of tableCHeaderChunks(t)) out += chunk;
-  return out;
+  pushArray1(out, `${F} ${p}_speed_rpm[${NS}]`, t.speedRpm, cFloat);
+  pushArray1(out, `${F} ${p}_torque_nm[${NT}]`, t.torqueNm, cFloat);
+  pushArray1(out, `${F} ${p}_max_motoring_wheel_nm[${NS}]`, t.envelope.maxMotoringWheelNm, cFloat);
+  pushArray1(out, `${F} ${p}_max_braking_wheel_nm[${NS}]`, t.envelope.maxBrakingWheelNm, cFloat);
+  pushArray2(out, `${U} ${p}_feasible[${NS}][${NT}]`, t, t.cells.feasible, u8);
+  pushArray2(out, `${U} ${p}_mode[${NS}][${NT}]`, t, t.cells.mode, u8);
+  for (const f of CELL_FLOAT_FIELDS) pushArray2(out, `${F} ${p}_${snake(f)}[${NS}][${NT}]`, t, t.cells[f], cFloat);
+  out.push(`#endif /* ${P}_TABLE_H */\n`);
+  return out.join('');
 }

@@ -7,42 +7,51 @@
 import { parse } from 'csv-parse/sync';
 import { ModelError } from '../problem.js';
 import { TABLE_CAUTION } from './caution.js';
-import { CELL_FLOAT_FIELDS, tableCell, type LookupTable, type TableCell } from '../solver/tableResult.js';
+import { CELL_FLOAT_FIELDS, modeFromCode, type LookupTable, type TableCell } from '../solver/tableResult.js';
 import { MODES, type Mode } from '../solver/types.js';
 
 export const TABLE_CSV_COLUMNS = ['wheelSpeedRpm', 'wheelTorqueNm', 'feasible', 'mode', ...CELL_FLOAT_FIELDS] as const;
 
-function num(x: number | null): string {
-  if (x === null) return '';
+/** A double in its shortest text; `-0` for negative zero. */
+function num(x: number): string {
   return Object.is(x, -0) ? '-0' : String(x);
 }
 
-function row(c: TableCell): string {
-  return [
-    num(c.wheelSpeedRpm),
-    num(c.wheelTorqueNm),
-    c.feasible ? 'true' : 'false',
-    c.mode ?? '',
-    ...CELL_FLOAT_FIELDS.map((f) => num(c[f])),
-  ].join(',');
+/** A cell value: as {@link num}, empty for NaN (no value). */
+function cellNum(x: number): string {
+  return Number.isNaN(x) ? '' : num(x);
 }
 
-/** Lines of the CSV (each with its trailing LF), for streaming large tables. */
-export function* tableCsvLines(t: LookupTable): Generator<string> {
-  // Comment lines first (readers skip `#` lines): the caution and what the table was made from.
-  yield `# ${TABLE_CAUTION}\n`;
-  yield `# drivetrain ${t.drivetrain}; content hash ${t.hash ?? 'none'}; parameters ${JSON.stringify(t.parameters)}\n`;
-  yield `# units: wheel speed rpm, torques N·m, speeds rpm, battery power W (discharge > 0), efficiency 0..1; empty = not applicable\n`;
-  yield `${TABLE_CSV_COLUMNS.join(',')}\n`;
-  for (let i = 0; i < t.nSpeed; i++) {
-    for (let j = 0; j < t.nTorque; j++) yield `${row(tableCell(t, i, j))}\n`;
-  }
-}
+/** Mode name of each mode code (empty for no mode). */
+const MODE_TEXT: readonly string[] = Array.from({ length: 256 }, (_, code) => modeFromCode(code) ?? '');
 
 export function tableToCsv(t: LookupTable): string {
-  let out = '';
-  for (const line of tableCsvLines(t)) out += line;
-  return out;
+  // Comment lines first (readers skip `#` lines): the caution and what the table was made from.
+  const out: string[] = [
+    `# ${TABLE_CAUTION}\n`,
+    `# drivetrain ${t.drivetrain}; content hash ${t.hash ?? 'none'}; parameters ${JSON.stringify(t.parameters)}\n`,
+    `# units: wheel speed rpm, torques N·m, speeds rpm, battery power W (discharge > 0), efficiency 0..1; empty = not applicable\n`,
+    `${TABLE_CSV_COLUMNS.join(',')}\n`,
+  ];
+  // One row per cell (speed outer, torque inner), written straight from the typed arrays.
+  const c = t.cells;
+  const fields = CELL_FLOAT_FIELDS.map((f) => c[f]);
+  const torqueText = Array.from(t.torqueNm, num);
+  const parts: string[] = new Array(4 + fields.length);
+  const lines: string[] = new Array(t.nTorque + 1).fill('');
+  for (let i = 0; i < t.nSpeed; i++) {
+    parts[0] = num(t.speedRpm[i]!);
+    for (let j = 0; j < t.nTorque; j++) {
+      const k = i * t.nTorque + j;
+      parts[1] = torqueText[j]!;
+      parts[2] = c.feasible[k] === 1 ? 'true' : 'false';
+      parts[3] = MODE_TEXT[c.mode[k]!]!;
+      for (let f = 0; f < fields.length; f++) parts[4 + f] = cellNum(fields[f]![k]!);
+      lines[j] = parts.join(',');
+    }
+    out.push(lines.join('\n')); // the empty last entry ends the row's last line
+  }
+  return out.join('');
 }
 
 function fail(message: string, path: string): never {
