@@ -14,7 +14,7 @@ import { randomUUID } from 'node:crypto';
 import { Piscina } from 'piscina';
 import type { Drivetrain } from './drivetrain.js';
 import { assembleTable, rowJob, type RowBlock, type TableOptions } from './table.js';
-import { resolveTableSpec, type TableSpecInput } from './tableSpec.js';
+import { resolveTableSpec, type ResolvedTableSpec, type TableSpecInput } from './tableSpec.js';
 import type { LookupTable } from './tableResult.js';
 import type { RowTask } from './tableWorker.js';
 import { workerScript, type WorkerScript } from './workerScript.js';
@@ -67,39 +67,51 @@ export class TablePool {
   }
 }
 
-export interface PooledTableOptions extends TableOptions {
+export interface PooledTableOptions extends TableOptions, RowBlockOptions {
   /** Pool to use; when absent a pool is made for this table and closed afterwards. */
   pool?: TablePool;
   /** Threads of the temporary pool when `pool` is absent. */
   threads?: number;
+}
+
+export interface RowBlockOptions {
   /** Rows per task (default: about four tasks per thread). */
   chunkRows?: number;
+  /** Cache key of the drivetrain in the workers (its content hash); default: unique to this call. */
+  drivetrainKey?: string;
   signal?: AbortSignal;
+  /** Called as row blocks finish: cells done, cells in all. */
+  onProgress?: (done: number, total: number) => void;
+}
+
+/** Solves the rows of a resolved table spec on `pool`, in blocks (not yet joined: see assembleTable). */
+export function solveRowBlocks(pool: TablePool, dt: Drivetrain, resolved: ResolvedTableSpec, opts: RowBlockOptions = {}): Promise<RowBlock[]> {
+  const nS = resolved.speedRpm.length;
+  const nT = resolved.torqueNm.length;
+  const chunk = Math.max(1, Math.floor(opts.chunkRows ?? Math.ceil(nS / (pool.threads * 4))));
+  const key = opts.drivetrainKey !== undefined ? `drivetrain-${opts.drivetrainKey}` : `table-${randomUUID()}`;
+  let done = 0;
+  const tasks: Promise<RowBlock>[] = [];
+  for (let start = 0; start < nS; start += chunk) {
+    const end = Math.min(nS, start + chunk);
+    const task: RowTask = { key, name: dt.name, doc: dt.doc, sun: dt.sun, ring: dt.ring, job: rowJob(resolved, start, end) };
+    tasks.push(
+      pool.run(task, opts.signal).then((block) => {
+        done += (block.rowEnd - block.rowStart) * nT;
+        opts.onProgress?.(done, nS * nT);
+        return block;
+      }),
+    );
+  }
+  return Promise.all(tasks);
 }
 
 /** Builds a lookup table on worker threads; the result equals {@link buildTable}'s. */
 export async function buildTablePooled(dt: Drivetrain, spec: TableSpecInput, opts: PooledTableOptions = {}): Promise<LookupTable> {
   const resolved = resolveTableSpec(spec, opts.maxCells);
-  const nS = resolved.speedRpm.length;
-  const nT = resolved.torqueNm.length;
   const pool = opts.pool ?? new TablePool(opts.threads === undefined ? {} : { threads: opts.threads });
   try {
-    const chunk = Math.max(1, Math.floor(opts.chunkRows ?? Math.ceil(nS / (pool.threads * 4))));
-    const key = opts.hash ?? `table-${randomUUID()}`;
-    let done = 0;
-    const tasks: Promise<RowBlock>[] = [];
-    for (let start = 0; start < nS; start += chunk) {
-      const end = Math.min(nS, start + chunk);
-      const task: RowTask = { key, name: dt.name, doc: dt.doc, sun: dt.sun, ring: dt.ring, job: rowJob(resolved, start, end) };
-      tasks.push(
-        pool.run(task, opts.signal).then((block) => {
-          done += (block.rowEnd - block.rowStart) * nT;
-          opts.onProgress?.(done, nS * nT);
-          return block;
-        }),
-      );
-    }
-    const blocks = await Promise.all(tasks);
+    const blocks = await solveRowBlocks(pool, dt, resolved, opts);
     return assembleTable(dt.name, resolved, blocks, opts.hash ?? null);
   } finally {
     if (!opts.pool) await pool.close();

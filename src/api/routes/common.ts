@@ -12,15 +12,21 @@ export function drivetrainOr404(app: FastifyInstance, name: string): { dt: Drive
   return { dt, hash: app.registry.drivetrainContentHash(entry) };
 }
 
+/** A rendered response body: text, or its UTF-8 bytes (bodies rendered on a worker thread). */
+export interface CachedBody<B extends string | Buffer = string> {
+  body: B;
+  contentType: string;
+}
+
 /**
  * A least-recently-used cache of rendered bodies keyed by content hash, bounded by total size
- * (characters); a body larger than a quarter of the bound is not kept.
+ * (characters of text, bytes of byte bodies); a body larger than a quarter of the bound is not kept.
  */
-export class BodyCache {
-  private readonly map = new Map<string, { body: string; contentType: string }>();
+export class BodyCache<B extends string | Buffer = string> {
+  private readonly map = new Map<string, CachedBody<B>>();
   private size = 0;
   constructor(private readonly maxChars: number) {}
-  get(key: string): { body: string; contentType: string } | undefined {
+  get(key: string): CachedBody<B> | undefined {
     const hit = this.map.get(key);
     if (hit) {
       this.map.delete(key);
@@ -28,7 +34,7 @@ export class BodyCache {
     }
     return hit;
   }
-  set(key: string, value: { body: string; contentType: string }): void {
+  set(key: string, value: CachedBody<B>): void {
     if (value.body.length > this.maxChars / 4) return;
     const old = this.map.get(key);
     if (old) {

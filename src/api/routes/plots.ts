@@ -53,7 +53,7 @@ export const plotRoutes: FastifyPluginAsyncZod = async (app) => {
       reply.header('etag', `"${hash}"`);
       const hit = cache.get(hash);
       if (hit) return reply.type(SVG).send(hit.body);
-      const table = await app.jobs.run('table', () => app.tables.build(dt, spec, hash));
+      const table = await app.jobs.run('table', () => app.tables.build(dt, dtHash, spec, hash));
       const body = plotTable(table, { title: `${dt.name}: optimal split` });
       cache.set(hash, { body, contentType: SVG });
       return reply.type(SVG).send(body);

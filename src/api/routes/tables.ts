@@ -1,22 +1,20 @@
 /**
  * Controller lookup tables: POST a grid, get JSON, CSV or a C header. Identical requests are
  * served from a cache keyed by the content hash of drivetrain, machines and request (ETag).
- * Large tables are built on the worker pool so the server keeps answering meanwhile.
+ * Large tables are built and rendered on the worker pool so the server keeps answering meanwhile.
  */
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
 import { z } from 'zod';
-import { tableToCHeader } from '../../report/cHeader.js';
-import { tableToCsv } from '../../report/tableCsv.js';
-import { tableToJson } from '../../report/tableJson.js';
 import { resolveTableSpec, tableSpecSchema } from '../../solver/tableSpec.js';
 import { contentHash } from '../../store/hash.js';
 import { errorBodySchema, nameParams } from '../schemas.js';
+import type { TableBody } from '../tableBuilder.js';
 import { BODY_CACHE_CHARS, BodyCache, drivetrainOr404 } from './common.js';
 
 const CONTENT_TYPES = { json: 'application/json; charset=utf-8', csv: 'text/csv; charset=utf-8', c: 'text/x-c; charset=utf-8' } as const;
 
 export const tableRoutes: FastifyPluginAsyncZod = async (app) => {
-  const cache = new BodyCache(BODY_CACHE_CHARS);
+  const cache = new BodyCache<TableBody>(BODY_CACHE_CHARS);
 
   app.post(
     '/drivetrains/:name/tables',
@@ -48,8 +46,7 @@ export const tableRoutes: FastifyPluginAsyncZod = async (app) => {
       if (req.headers['if-none-match'] === etag) return reply.code(304).send(null);
       const hit = cache.get(hash);
       if (hit) return reply.type(hit.contentType).send(hit.body);
-      const table = await app.jobs.run('table', () => app.tables.build(dt, spec, hash));
-      const body = spec.format === 'csv' ? tableToCsv(table) : spec.format === 'c' ? tableToCHeader(table) : JSON.stringify(tableToJson(table));
+      const body = await app.jobs.run('table', () => app.tables.body(dt, dtHash, spec, hash));
       const contentType = CONTENT_TYPES[spec.format];
       cache.set(hash, { body, contentType });
       return reply.type(contentType).send(body);
