@@ -59,7 +59,7 @@ export interface MachineMap {
   /**
    * The same loss, torque-major: lossColumnsW[j * nSpeed + i]. Walks along speed at a fixed
    * torque (the split mode's sun-speed walk) read each torque's column contiguously, which keeps
-   * the cache lines a solve touches few (src/solver/splitWalk.ts).
+   * the cache lines a solve touches few (see {@link lossInColumns}).
    */
   readonly lossColumnsW: Float64Array;
   /** Envelope at each speed node, N·m. */
@@ -317,6 +317,18 @@ export function torqueMajor(lossW: Float64Array, nSpeed: number, nTorque: number
   const out = new Float64Array(lossW.length);
   for (let i = 0; i < nSpeed; i++) for (let j = 0; j < nTorque; j++) out[j * nSpeed + i] = lossW[i * nTorque + j]!;
   return out;
+}
+
+/** {@link lossInCell} read from the torque-major copy: the same surface, the same arithmetic. */
+export function lossInColumns(map: MachineMap, i: number, u: number, j: number, v: number): number {
+  const nS = map.nSpeed;
+  const L = map.lossColumnsW;
+  const k = j * nS + i;
+  const l00 = L[k]!;
+  const l10 = L[k + 1]!;
+  const l01 = L[k + nS]!;
+  const l11 = L[k + nS + 1]!;
+  return (1 - u) * ((1 - v) * l00 + v * l01) + u * ((1 - v) * l10 + v * l11);
 }
 
 /** Loss (W) at a signed speed (rad/s) and torque, by the reverse mirror; no feasibility check. */

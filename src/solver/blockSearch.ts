@@ -49,20 +49,3 @@ export function insertBlock(order: Int32Array, bounds: Float64Array, b: number):
   }
   order[j] = b;
 }
-
-/** What to do with the next block in bound order: stop (no later block can win), skip it, or visit it. */
-export const BLOCK_STOP = 0;
-export const BLOCK_SKIP = 1;
-export const BLOCK_VISIT = 2;
-
-export function nextBlock(bound: number, best: number, bestPiece: number, firstPiece: number): number {
-  if (bound === Number.POSITIVE_INFINITY || bound > best) return BLOCK_STOP;
-  // An equal bound can only tie, and a tie goes to the lower piece.
-  if (bestPiece >= 0 && bound === best && firstPiece > bestPiece) return BLOCK_SKIP;
-  return BLOCK_VISIT;
-}
-
-/** Whether a piece's feasible minimum f at piece index p beats the best so far (ties to the lower piece). */
-export function beats(f: number, p: number, best: number, bestPiece: number): boolean {
-  return f < best || (f === best && p < bestPiece);
-}

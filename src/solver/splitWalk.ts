@@ -21,7 +21,7 @@ import type { Drivetrain } from './drivetrain.js';
 import { MODE_SPLIT } from './modeIndex.js';
 import { axisCell, cellWeight, moveCell } from './machineEval.js';
 import { bestOnPiece, PIECE } from './piece.js';
-import { BLOCK_PIECES, BLOCK_SEARCH, BLOCK_SKIP, BLOCK_STOP, batteryOut, beats, insertBlock, nextBlock, objectiveBound, roundingMargin } from './blockSearch.js';
+import { BLOCK_PIECES, BLOCK_SEARCH, batteryOut, insertBlock, objectiveBound, roundingMargin } from './blockSearch.js';
 
 /** Result of {@link bestSplitPiece}: objective (sense·P_batt), sun speed and sun torque of the best setting. */
 export const SPLIT_BEST = { f: Number.POSITIVE_INFINITY, x: Number.NaN, ts: Number.NaN };
@@ -247,11 +247,12 @@ export function bestSplitPiece(dt: Drivetrain, wc: number, tout: number, tsLo: n
   let bts = Number.NaN;
   for (let q = 0; q < nb; q++) {
     const b = order[q]!;
+    const bound = bBound[b]!;
+    // Sorted by bound: once one cannot reach the best (or is out), none after it can.
+    if (bound === Number.POSITIVE_INFINITY || bound > best) break;
     const p0 = bStart[b]!;
     const p1 = bEnd[b]!;
-    const next = nextBlock(bBound[b]!, best, bestPiece, p0);
-    if (next === BLOCK_STOP) break;
-    if (next === BLOCK_SKIP) continue;
+    if (bestPiece >= 0 && bound === best && p0 > bestPiece) continue;
     const xa = bp[p0]!;
     const high = xa + bp[p1]! > 2 * wc;
     const ts = high ? tsHi : tsLo;
@@ -265,7 +266,7 @@ export function bestSplitPiece(dt: Drivetrain, wc: number, tout: number, tsLo: n
       const a = bp[p]!;
       const bb = bp[p + 1]!;
       evalSplit(dt, bb, base, ts, tout, co, ev, bOff);
-      if (bestOnPiece(ev, aOff, bOff, nSlack, 4, tolT, tolP) && beats(PIECE.f, p, best, bestPiece)) {
+      if (bestOnPiece(ev, aOff, bOff, nSlack, 4, tolT, tolP) && (PIECE.f < best || (PIECE.f === best && p < bestPiece))) {
         best = PIECE.f;
         bestPiece = p;
         const t = PIECE.t;

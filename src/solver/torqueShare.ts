@@ -7,7 +7,7 @@
  * where a battery limit is met. Speeds rad/s, torques N·m, powers W.
  */
 import { lossInCell, upperIndex, type MachineMap } from '../machine/map.js';
-import { BLOCK_PIECES, BLOCK_SEARCH, BLOCK_SKIP, BLOCK_STOP, batteryOut, beats, insertBlock, nextBlock, objectiveBound, roundingMargin } from './blockSearch.js';
+import { BLOCK_PIECES, BLOCK_SEARCH, batteryOut, insertBlock, objectiveBound, roundingMargin } from './blockSearch.js';
 import { axisCell, cellWeight, moveCell } from './machineEval.js';
 import type { Drivetrain } from './drivetrain.js';
 import { bestOnPiece, PIECE } from './piece.js';
@@ -121,11 +121,12 @@ function bestSharePiece(dt: Drivetrain, w: number, tout: number, n: number, devW
   let bestTs = Number.NaN;
   for (let q = 0; q < nb; q++) {
     const b = order[q]!;
+    const bound = bBound[b]!;
+    // Sorted by bound: once one cannot reach the best (or is out), none after it can.
+    if (bound === Number.POSITIVE_INFINITY || bound > best) break;
     const p0 = bStart[b]!;
     const p1 = bEnd[b]!;
-    const next = nextBlock(bBound[b]!, best, bestPiece, p0);
-    if (next === BLOCK_STOP) break;
-    if (next === BLOCK_SKIP) continue;
+    if (bestPiece >= 0 && bound === best && p0 > bestPiece) continue;
     const t0 = tb[p0]!;
     SH.cs = upperIndex(sun.torqueNm, fsOf(t0));
     SH.cr = upperIndex(ring.torqueNm, frOf(t0));
@@ -136,7 +137,7 @@ function bestSharePiece(dt: Drivetrain, w: number, tout: number, n: number, devW
       const a = tb[p]!;
       const z = tb[p + 1]!;
       evalShare(dt, w, tout, z, devW, ev, bOff);
-      if (bestOnPiece(ev, aOff, bOff, nSlack, 0, 0, tolP) && beats(PIECE.f, p, best, bestPiece)) {
+      if (bestOnPiece(ev, aOff, bOff, nSlack, 0, 0, tolP) && (PIECE.f < best || (PIECE.f === best && p < bestPiece))) {
         best = PIECE.f;
         bestPiece = p;
         const t = PIECE.t;
