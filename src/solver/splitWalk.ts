@@ -21,7 +21,15 @@ import type { Drivetrain } from './drivetrain.js';
 import { MODE_SPLIT } from './modeIndex.js';
 import { axisCell, cellWeight, moveCell } from './machineEval.js';
 import { bestOnPiece, PIECE } from './piece.js';
-import { BLOCK_PIECES, BLOCK_SEARCH, batteryOut, insertBlock, objectiveBound, roundingMargin } from './blockSearch.js';
+
+/** Most pieces per block. */
+export const BLOCK_PIECES = 8;
+
+/**
+ * Search switches and counters, for tests and benchmarks: `prune` false visits every block in
+ * order (the plain walk); `evaluations` counts piece-end evaluations.
+ */
+export const SPLIT_SEARCH = { prune: true, evaluations: 0 };
 
 /** Result of {@link bestSplitPiece}: objective (sense·P_batt), sun speed and sun torque of the best setting. */
 export const SPLIT_BEST = { f: Number.POSITIVE_INFINITY, x: Number.NaN, ts: Number.NaN };
@@ -83,7 +91,7 @@ function evalSplit(dt: Drivetrain, x: number, base: number, ts: number, tout: nu
   const nS = sun.nSpeed;
   const wr = (base - x) / dt.k;
   const tr = tout - ts;
-  BLOCK_SEARCH.evaluations++;
+  SPLIT_SEARCH.evaluations++;
   // sun
   const as = x < 0 ? -x : x;
   let i = (CUR.s = moveCell(sun.speedRadS, CUR.s, as));
@@ -233,12 +241,19 @@ export function bestSplitPiece(dt: Drivetrain, wc: number, tout: number, tsLo: n
     const mb = ts * xb + tr * wrb;
     const mLo = ma < mb ? ma : mb;
     const mHi = ma < mb ? mb : ma;
-    const margin = roundingMargin(Math.abs(mLo) + Math.abs(mHi) + Math.abs(sl) + Math.abs(sL) + Math.abs(EXT.lMin) + Math.abs(EXT.lMax) + Math.abs(constW));
+    // Rounding margin: the evaluated sums may differ from these bounds in the last bits.
+    const margin = 1e-12 * (Math.abs(mLo) + Math.abs(mHi) + sL + EXT.lMax + Math.abs(constW)) + 1e-9;
     const pLo = mLo + sl + EXT.lMin + constW - margin;
     const pHi = mHi + sL + EXT.lMax + constW + margin;
-    const out = sunOut || ringOut || (battery && batteryOut(pLo, pHi, dt.maxDischargeW, dt.maxChargeW, tolP));
-    bBound[b] = objectiveBound(pLo, pHi, sense, out);
-    insertBlock(order, bBound, b);
+    const batteryOut = battery && (pLo > dt.maxDischargeW + tolP || pHi < -dt.maxChargeW - tolP);
+    bBound[b] = !SPLIT_SEARCH.prune ? Number.NEGATIVE_INFINITY : sunOut || ringOut || batteryOut ? Number.POSITIVE_INFINITY : sense > 0 ? pLo : -pHi;
+    // Insertion by bound, ties by block index.
+    let j = b;
+    while (j > 0 && bBound[order[j - 1]!]! > bBound[b]!) {
+      order[j] = order[j - 1]!;
+      j--;
+    }
+    order[j] = b;
   }
 
   let best = Number.POSITIVE_INFINITY;

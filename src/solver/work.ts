@@ -23,10 +23,7 @@ export interface SolverWork {
   readonly tb: Float64Array;
   /** Split-mode loss columns of two regimes (src/solver/splitWalk.ts). */
   readonly cols: Float64Array;
-  /** Torque-share loss rows of the sun and ring maps at one speed (src/solver/torqueShare.ts). */
-  readonly rowS: Float64Array;
-  readonly rowR: Float64Array;
-  /** Blocks of pieces of either search: first piece, end piece (exclusive), bound, visiting order. */
+  /** Split-mode blocks of pieces: first piece, end piece (exclusive), bound, visiting order. */
   readonly blockStart: Int32Array;
   readonly blockEnd: Int32Array;
   readonly blockBound: Float64Array;
@@ -56,24 +53,16 @@ export function newCandidate(): Candidate {
   return { ok: false, p: Number.NaN, ws: 0, wr: 0, ts: 0, tr: 0 };
 }
 
-/** Scratch sized for a drivetrain: breakpoint counts, and the grid sizes of the sun and ring maps. */
-export function createWork(
-  speedBreakpoints: number,
-  torqueBreakpoints: number,
-  sun: { nSpeed: number; nTorque: number },
-  ring: { nSpeed: number; nTorque: number },
-): SolverWork {
-  const blocks = Math.max(speedBreakpoints, torqueBreakpoints);
+/** Scratch sized for a drivetrain: breakpoint counts, and the speed nodes of the sun and ring maps. */
+export function createWork(speedBreakpoints: number, torqueBreakpoints: number, sunSpeeds: number, ringSpeeds: number): SolverWork {
   return {
     bp: new Float64Array(speedBreakpoints),
     tb: new Float64Array(torqueBreakpoints),
-    cols: new Float64Array(4 * (sun.nSpeed + ring.nSpeed)),
-    rowS: new Float64Array(sun.nTorque),
-    rowR: new Float64Array(ring.nTorque),
-    blockStart: new Int32Array(blocks),
-    blockEnd: new Int32Array(blocks),
-    blockBound: new Float64Array(blocks),
-    blockOrder: new Int32Array(blocks),
+    cols: new Float64Array(4 * (sunSpeeds + ringSpeeds)),
+    blockStart: new Int32Array(speedBreakpoints),
+    blockEnd: new Int32Array(speedBreakpoints),
+    blockBound: new Float64Array(speedBreakpoints),
+    blockOrder: new Int32Array(speedBreakpoints),
     ev: new Float64Array(16),
     env: new Float64Array(4),
     cand: [newCandidate(), newCandidate(), newCandidate(), newCandidate()],

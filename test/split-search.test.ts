@@ -1,7 +1,6 @@
 /**
- * The best-first searches with bounds (src/solver/blockSearch.ts: the split mode's sun-speed walk
- * in splitWalk.ts, the torque share of the locked mode and of split at Δ = 0 in torqueShare.ts)
- * must give exactly the answer of the plain left-to-right walk over every piece: same mode, same numbers to the last
+ * The split mode's best-first search with bounds (src/solver/splitWalk.ts) must give exactly the
+ * answer of the plain left-to-right walk over every piece: same mode, same numbers to the last
  * bit, on the demo drivetrain and on synthetic ones (non-convex losses, no reverse, tight
  * battery), for every option set, motoring and braking, beyond the limits included (where the
  * battery-cut search maximises battery power, the bound's other sense). Global optimality itself
@@ -15,7 +14,7 @@ import fc from 'fast-check';
 import { Registry } from '../src/store/registry.js';
 import { describeDrivetrain, type Drivetrain, type DrivetrainInput } from '../src/solver/drivetrain.js';
 import { solvePoint } from '../src/solver/point.js';
-import { BLOCK_SEARCH } from '../src/solver/blockSearch.js';
+import { SPLIT_SEARCH } from '../src/solver/splitWalk.js';
 import type { SolveOptions } from '../src/solver/types.js';
 import { lossInCell, lossInColumns } from '../src/machine/map.js';
 import { BASE_DOC, RING_SPEC, SUN_SPEC, makeDrivetrain, syntheticMap } from './support/solverFixtures.js';
@@ -43,20 +42,20 @@ function synthetic(): Drivetrain[] {
 const OPTION_SETS: SolveOptions[] = [{}, { strict: true }, { modes: ['split'] }, { alternatives: false }, { modes: ['split', 'locked'] }];
 
 function both(dt: Drivetrain, n: number, t: number, opts: SolveOptions): { pruned: string; plain: string; evPruned: number; evPlain: number } {
-  BLOCK_SEARCH.evaluations = 0;
+  SPLIT_SEARCH.evaluations = 0;
   const pruned = JSON.stringify(solvePoint(dt, n, t, opts));
-  const evPruned = BLOCK_SEARCH.evaluations;
-  BLOCK_SEARCH.prune = false;
-  BLOCK_SEARCH.evaluations = 0;
+  const evPruned = SPLIT_SEARCH.evaluations;
+  SPLIT_SEARCH.prune = false;
+  SPLIT_SEARCH.evaluations = 0;
   try {
     const plain = JSON.stringify(solvePoint(dt, n, t, opts));
-    return { pruned, plain, evPruned, evPlain: BLOCK_SEARCH.evaluations };
+    return { pruned, plain, evPruned, evPlain: SPLIT_SEARCH.evaluations };
   } finally {
-    BLOCK_SEARCH.prune = true;
+    SPLIT_SEARCH.prune = true;
   }
 }
 
-describe('best-first searches with bounds', () => {
+describe('split search with bounds', () => {
   it('reads the same loss surface from the torque-major copy', async () => {
     const dt = await demo();
     for (const map of [dt.sun, dt.ring]) {
