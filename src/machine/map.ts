@@ -56,12 +56,6 @@ export interface MachineMap {
   readonly torqueNm: Float64Array;
   /** Loss, W, row-major: lossW[i * nTorque + j] at (speedRadS[i], torqueNm[j]). */
   readonly lossW: Float64Array;
-  /**
-   * The same loss, torque-major: lossColumnsW[j * nSpeed + i]. Walks along speed at a fixed
-   * torque (the split mode's sun-speed walk) read each torque's column contiguously, which keeps
-   * the cache lines a solve touches few (see {@link lossInColumns}).
-   */
-  readonly lossColumnsW: Float64Array;
   /** Envelope at each speed node, N·m. */
   readonly maxTorqueNm: Float64Array;
   readonly minTorqueNm: Float64Array;
@@ -205,7 +199,6 @@ export function buildMachineMap(name: string, g: GridInput, provenance: MapProve
     speedRadS: Float64Array.from(g.speedRpm, (n) => n * RAD_S_PER_RPM),
     torqueNm: torque,
     lossW: loss,
-    lossColumnsW: torqueMajor(loss, nS, nT),
     maxTorqueNm: maxT,
     minTorqueNm: minT,
     maxSpeedRadS: g.maxSpeedRpm * RAD_S_PER_RPM,
@@ -309,25 +302,6 @@ export function lossInCell(map: MachineMap, i: number, u: number, j: number, v: 
   const l01 = L[k + 1]!;
   const l10 = L[k + nT]!;
   const l11 = L[k + nT + 1]!;
-  return (1 - u) * ((1 - v) * l00 + v * l01) + u * ((1 - v) * l10 + v * l11);
-}
-
-/** The torque-major copy of a row-major (speed × torque) loss grid. */
-export function torqueMajor(lossW: Float64Array, nSpeed: number, nTorque: number): Float64Array {
-  const out = new Float64Array(lossW.length);
-  for (let i = 0; i < nSpeed; i++) for (let j = 0; j < nTorque; j++) out[j * nSpeed + i] = lossW[i * nTorque + j]!;
-  return out;
-}
-
-/** {@link lossInCell} read from the torque-major copy: the same surface, the same arithmetic. */
-export function lossInColumns(map: MachineMap, i: number, u: number, j: number, v: number): number {
-  const nS = map.nSpeed;
-  const L = map.lossColumnsW;
-  const k = j * nS + i;
-  const l00 = L[k]!;
-  const l10 = L[k + 1]!;
-  const l01 = L[k + nS]!;
-  const l11 = L[k + nS + 1]!;
   return (1 - u) * ((1 - v) * l00 + v * l01) + u * ((1 - v) * l10 + v * l11);
 }
 

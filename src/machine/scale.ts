@@ -28,7 +28,6 @@ export function scaleMachineTorque(map: MachineMap, s: number, name = s === 1 ? 
     speedRadS: map.speedRadS,
     torqueNm: scale(map.torqueNm),
     lossW: scale(map.lossW),
-    lossColumnsW: scale(map.lossColumnsW),
     maxTorqueNm: scale(map.maxTorqueNm),
     minTorqueNm: scale(map.minTorqueNm),
     maxSpeedRadS: map.maxSpeedRadS,

@@ -200,7 +200,7 @@ export function buildDrivetrain(name: string, input: unknown, getMachine: (name:
     ringTorqueMirror: mirrorAxis(ring.torqueNm),
     tolTorque: 1e-9 * (1 + tMax),
     tolPower: 1e-9 * (1 + doc.battery.maxDischargeW + doc.battery.maxChargeW + doc.auxiliaryW),
-    work: createWork(sunSpeedNodes.length + ringSpeedNodes.length + 8, 2 * (sun.nTorque + ring.nTorque) + 8, sun.nSpeed, ring.nSpeed),
+    work: createWork(sunSpeedNodes.length + ringSpeedNodes.length + 8, 2 * (sun.nTorque + ring.nTorque) + 8),
   });
 }
 

@@ -7,17 +7,15 @@
  * (1 + k)·ω_c ∓ k·n_j (ring zero speed among them), Δ = 0, and the ends of the allowed speed
  * range (speed limits, reverse permission). On each piece the feasible part is an interval (all
  * slacks linear; its ends are the roots of envelope and battery slacks) and the minimum sits at
- * one of its ends, so enumerating pieces gives the exact global optimum; the enumeration is a
- * best-first search with bounds that skips blocks of pieces which cannot win (src/solver/splitWalk.ts),
- * with the plain walk's answer to the last bit. At Δ = 0 the sun torque is free within the
- * static-friction band, solved exactly by {@link solveShare}.
+ * one of its ends, so enumerating pieces gives the exact global optimum. At Δ = 0 the sun torque
+ * is free within the static-friction band, solved exactly by {@link solveShare}.
  */
 import { sunTorqueBand } from '../gearset/planetary.js';
 import type { Drivetrain } from './drivetrain.js';
 import { MODE_SPLIT } from './modeIndex.js';
-import { envelopeAt, firstAbove, lastBelow } from './machineEval.js';
-import { bestOnPiece } from './piece.js';
-import { bestSplitPiece, evalSplitPoint, SPLIT_BEST } from './splitWalk.js';
+import { axisCell, cellWeight, envelopeAt, firstAbove, lastBelow, moveCell } from './machineEval.js';
+import { lossInCell, upperIndex } from '../machine/map.js';
+import { bestOnPiece, PIECE } from './piece.js';
 import { solveShare } from './torqueShare.js';
 import type { Candidate } from './work.js';
 
@@ -80,6 +78,67 @@ export function splitBreakpoints(dt: Drivetrain, wc: number, lo: number, hi: num
   return n;
 }
 
+/**
+ * Torque cells of the regime torques, found once per regime: sun at +T_s (forward speed) and
+ * −T_s (reverse speed, by the mirror), ring likewise.
+ */
+const SP = { i: 0, u: 0 };
+const SN = { i: 0, u: 0 };
+const RP = { i: 0, u: 0 };
+const RN = { i: 0, u: 0 };
+/** Speed-cell cursors of the sun and ring maps during a sorted walk. */
+const CUR = { s: 0, r: 0 };
+
+function setRegime(dt: Drivetrain, ts: number, tr: number): void {
+  axisCell(dt.sun.torqueNm, ts, SP);
+  axisCell(dt.sun.torqueNm, -ts, SN);
+  axisCell(dt.ring.torqueNm, tr, RP);
+  axisCell(dt.ring.torqueNm, -tr, RN);
+}
+
+/**
+ * P_batt (W) and slacks at sun speed x (rad/s) with sun torque ts (N·m), into ev[o..o+6]; the
+ * regime's torque cells must be set. One speed-cell search per machine serves loss and envelope.
+ */
+function evalSplit(dt: Drivetrain, x: number, base: number, ts: number, tout: number, ev: Float64Array, o: number): void {
+  const sun = dt.sun;
+  const ring = dt.ring;
+  const wr = (base - x) / dt.k;
+  const tr = tout - ts;
+  // sun
+  const as = x < 0 ? -x : x;
+  let i = (CUR.s = moveCell(sun.speedRadS, CUR.s, as));
+  let u = cellWeight(sun.speedRadS, i, as);
+  let tc = x < 0 ? SN : SP;
+  const ls = lossInCell(sun, i, u, tc.i, tc.u);
+  let mx = sun.maxTorqueNm;
+  let mn = sun.minTorqueNm;
+  let hi = mx[i]! + u * (mx[i + 1]! - mx[i]!);
+  let lo = mn[i]! + u * (mn[i + 1]! - mn[i]!);
+  const sMax = x < 0 ? -lo : hi;
+  const sMin = x < 0 ? -hi : lo;
+  // ring
+  const ar = wr < 0 ? -wr : wr;
+  i = CUR.r = moveCell(ring.speedRadS, CUR.r, ar);
+  u = cellWeight(ring.speedRadS, i, ar);
+  tc = wr < 0 ? RN : RP;
+  const lr = lossInCell(ring, i, u, tc.i, tc.u);
+  mx = ring.maxTorqueNm;
+  mn = ring.minTorqueNm;
+  hi = mx[i]! + u * (mx[i + 1]! - mx[i]!);
+  lo = mn[i]! + u * (mn[i + 1]! - mn[i]!);
+  const rMax = wr < 0 ? -lo : hi;
+  const rMin = wr < 0 ? -hi : lo;
+  const p = ts * x + tr * wr + ls + lr + dt.auxW + dt.deviceW[MODE_SPLIT]!;
+  ev[o] = dt.work.sense * p;
+  ev[o + 1] = sMax - ts;
+  ev[o + 2] = ts - sMin;
+  ev[o + 3] = rMax - tr;
+  ev[o + 4] = tr - rMin;
+  ev[o + 5] = dt.maxDischargeW - p;
+  ev[o + 6] = p + dt.maxChargeW;
+}
+
 /** Sun-torque range at Δ = 0 (N·m): the friction band intersected with both envelopes at ω_c. */
 const BAND = new Float64Array(2);
 
@@ -107,7 +166,14 @@ export function solveSplit(dt: Drivetrain, wc: number, tout: number, out: Candid
   const tsHi = tout / (tout > 0 ? dt.cSunDelivers : dt.cRingDelivers);
   const tsLo = tout / (tout < 0 ? dt.cSunDelivers : dt.cRingDelivers);
   const n = splitBreakpoints(dt, wc, lo, hi);
+  const bp = dt.work.bp;
+  const ev = dt.work.ev;
+  CUR.s = upperIndex(dt.sun.speedRadS, Math.abs(lo));
+  CUR.r = upperIndex(dt.ring.speedRadS, Math.abs((base - lo) / k));
+  const tolT = dt.tolTorque;
+  const tolP = dt.tolPower;
   const sense = dt.work.sense;
+  const nSlack = dt.work.battery ? 6 : 4;
   let best = Number.POSITIVE_INFINITY;
   let bx = Number.NaN;
   let bts = Number.NaN;
@@ -115,17 +181,39 @@ export function solveSplit(dt: Drivetrain, wc: number, tout: number, out: Candid
     const x = lo;
     if (x !== wc || tout === 0) {
       const ts = x > wc ? tsHi : tsLo;
-      const ev = evalSplitPoint(dt, wc, x, ts, tout);
-      if (bestOnPiece(ev, 0, 0, dt.work.battery ? 6 : 4, 4, dt.tolTorque, dt.tolPower)) {
+      setRegime(dt, ts, tout - ts);
+      evalSplit(dt, x, base, ts, tout, ev, 0);
+      if (bestOnPiece(ev, 0, 0, nSlack, 4, tolT, tolP)) {
         best = ev[0]!;
         bx = x;
         bts = ts;
       }
     }
-  } else if (bestSplitPiece(dt, wc, tout, tsLo, tsHi, n)) {
-    best = SPLIT_BEST.f;
-    bx = SPLIT_BEST.x;
-    bts = SPLIT_BEST.ts;
+  } else {
+    let aOff = 0;
+    let bOff = 8;
+    let prevHigh = -1;
+    for (let p = 0; p < n - 1; p++) {
+      const a = bp[p]!;
+      const b = bp[p + 1]!;
+      const high = a + b > 2 * wc ? 1 : 0;
+      const ts = high ? tsHi : tsLo;
+      if (high !== prevHigh) {
+        setRegime(dt, ts, tout - ts);
+        evalSplit(dt, a, base, ts, tout, ev, aOff);
+      }
+      evalSplit(dt, b, base, ts, tout, ev, bOff);
+      prevHigh = high;
+      if (bestOnPiece(ev, aOff, bOff, nSlack, 4, tolT, tolP) && PIECE.f < best) {
+        best = PIECE.f;
+        const t = PIECE.t;
+        bx = t === 0 ? a : t === 1 ? b : Math.min(b, Math.max(a, a + t * (b - a)));
+        bts = ts;
+      }
+      const s = aOff;
+      aOff = bOff;
+      bOff = s;
+    }
   }
   if (best < Number.POSITIVE_INFINITY) {
     out.ok = true;

@@ -21,13 +21,6 @@ export interface SolverWork {
   readonly bp: Float64Array;
   /** Torque-share breakpoints in sun torque, N·m. */
   readonly tb: Float64Array;
-  /** Split-mode loss columns of two regimes (src/solver/splitWalk.ts). */
-  readonly cols: Float64Array;
-  /** Split-mode blocks of pieces: first piece, end piece (exclusive), bound, visiting order. */
-  readonly blockStart: Int32Array;
-  readonly blockEnd: Int32Array;
-  readonly blockBound: Float64Array;
-  readonly blockOrder: Int32Array;
   /** Objective and slacks at the two ends of a piece. */
   readonly ev: Float64Array;
   /** Envelope values (max, min) of two machines. */
@@ -53,16 +46,10 @@ export function newCandidate(): Candidate {
   return { ok: false, p: Number.NaN, ws: 0, wr: 0, ts: 0, tr: 0 };
 }
 
-/** Scratch sized for a drivetrain: breakpoint counts, and the speed nodes of the sun and ring maps. */
-export function createWork(speedBreakpoints: number, torqueBreakpoints: number, sunSpeeds: number, ringSpeeds: number): SolverWork {
+export function createWork(speedBreakpoints: number, torqueBreakpoints: number): SolverWork {
   return {
     bp: new Float64Array(speedBreakpoints),
     tb: new Float64Array(torqueBreakpoints),
-    cols: new Float64Array(4 * (sunSpeeds + ringSpeeds)),
-    blockStart: new Int32Array(speedBreakpoints),
-    blockEnd: new Int32Array(speedBreakpoints),
-    blockBound: new Float64Array(speedBreakpoints),
-    blockOrder: new Int32Array(speedBreakpoints),
     ev: new Float64Array(16),
     env: new Float64Array(4),
     cand: [newCandidate(), newCandidate(), newCandidate(), newCandidate()],
