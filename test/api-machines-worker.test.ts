@@ -82,7 +82,6 @@ describe('machine documents built on worker threads', () => {
     expect(entry.origin).toBe('data');
     expect(entry.map).toStrictEqual(local.map);
     expect(entry.map.lossW).toStrictEqual(local.map.lossW);
-    expect(entry.map.lossColumnsW).toStrictEqual(local.map.lossColumnsW);
     expect(Object.isFrozen(entry.map)).toBe(true);
     expect(entry.summary).toStrictEqual(local.summary);
     expect(entry.hash).toBe(contentHash(doc));

@@ -23,7 +23,7 @@ export type MachineTaskReply =
 /** The distinct buffers under a map's arrays (each is its own allocation today; a shared one is sent once). */
 function mapBuffers(built: BuiltMachine): ArrayBuffer[] {
   const m = built.map;
-  const arrays = [m.speedRadS, m.torqueNm, m.lossW, m.lossColumnsW, m.maxTorqueNm, m.minTorqueNm];
+  const arrays = [m.speedRadS, m.torqueNm, m.lossW, m.maxTorqueNm, m.minTorqueNm];
   return [...new Set(arrays.map((a) => a.buffer as ArrayBuffer))];
 }
 
