@@ -214,7 +214,11 @@ export class Registry {
    * build waits its turn with the other writes, so writes land in the order they arrived.
    */
   async putMachine(name: string, value: unknown, build: MachineBuilder = buildMachine): Promise<{ created: boolean; entry: MachineEntry }> {
-    const doc = parseMachineDoc(value);
+    return this.putMachineDoc(name, parseMachineDoc(value), build);
+  }
+
+  /** {@link putMachine} for a document already checked against the machine schema (the API validates bodies with it). */
+  putMachineDoc(name: string, doc: MachineDoc, build: MachineBuilder = buildMachine): Promise<{ created: boolean; entry: MachineEntry }> {
     return this.serialized(async () => {
       const { map, summary, hash } = await build(name, doc);
       await writeFileAtomic(documentPath(this.machineDir, name), JSON.stringify(doc, null, 1) + '\n');

@@ -115,7 +115,8 @@ export const machineRoutes: FastifyPluginAsyncZod = async (app) => {
       },
     },
     async (req, reply) => {
-      const { created, entry } = await app.registry.putMachine(req.params.name, req.body, build);
+      // The body was validated against the machine schema by the route (JSON, or CSV turned into a document).
+      const { created, entry } = await app.registry.putMachineDoc(req.params.name, req.body, build);
       return reply.code(created ? 201 : 200).send(view(entry));
     },
   );
