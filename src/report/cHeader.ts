@@ -65,7 +65,8 @@ function wrapCaution(text: string, width: number): string[] {
   return lines;
 }
 
-function snake(field: string): string {
+/** The C name of a table field (`batteryW` → `battery_w`). */
+export function snake(field: string): string {
   return field.replace(/[A-Z]/g, (c) => `_${c.toLowerCase()}`);
 }
 
@@ -105,7 +106,11 @@ function pushArray2(out: string[], decl: string, t: LookupTable, values: ArrayLi
   out.push('};\n\n');
 }
 
-export function tableToCHeader(t: LookupTable): string {
+/**
+ * The header up to its arrays: the comment (table, parameters, units, caution), the include
+ * guard, sizes, the unused-attribute macro and the mode enum.
+ */
+export function cHeaderPreamble(t: LookupTable): string {
   const P = cPrefix(t.drivetrain);
   const p = P.toLowerCase();
   const NS = `${P}_N_SPEED`;
@@ -149,6 +154,15 @@ export function tableToCHeader(t: LookupTable): string {
   out.push(`typedef enum {\n  ${P}_MODE_NONE = 0,\n`);
   const enumLines = MODES.map((m, k) => `  ${P}_MODE_${cPrefix(m)} = ${k + 1}`);
   out.push(`${enumLines.join(',\n')}\n} ${p}_mode_t;\n\n`);
+  return out.join('');
+}
+
+export function tableToCHeader(t: LookupTable): string {
+  const P = cPrefix(t.drivetrain);
+  const p = P.toLowerCase();
+  const NS = `${P}_N_SPEED`;
+  const NT = `${P}_N_TORQUE`;
+  const out: string[] = [cHeaderPreamble(t)];
   const F = `static const float ${P}_UNUSED`;
   const U = `static const uint8_t ${P}_UNUSED`;
   pushArray1(out, `${F} ${p}_speed_rpm[${NS}]`, t.speedRpm, cFloat);
