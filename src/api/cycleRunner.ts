@@ -4,13 +4,13 @@
  * here again with its code, message and path (and so answered 4xx as in process).
  */
 import { randomUUID } from 'node:crypto';
-import { ModelError } from '../problem.js';
 import type { Drivetrain } from '../solver/drivetrain.js';
 import type { TablePool } from '../solver/tablePool.js';
 import { workerScript, type WorkerScript } from '../solver/workerScript.js';
 import type { CycleJobOptions } from '../vehicle/cycleJob.js';
 import type { Cycle, Vehicle } from '../vehicle/schema.js';
 import type { CycleBodyFormat, CycleTask, CycleTaskReply } from './cycleWorker.js';
+import { valueOf } from './workerReply.js';
 
 let script: WorkerScript | undefined;
 
@@ -41,6 +41,5 @@ export async function cycleBodyPooled(
     format,
   };
   const reply = await pool.runScript<CycleTask, CycleTaskReply>(script, task, opts.signal);
-  if (!reply.ok) throw new ModelError(reply.error.code, reply.error.message, reply.error.path);
-  return reply.body;
+  return valueOf(reply);
 }

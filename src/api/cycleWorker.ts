@@ -3,15 +3,14 @@
  * worker pool). A task carries the drivetrain as plain data (rebuilt and cached per key with the
  * table worker's cache), the vehicle, the checked cycle and the job's options. The worker solves
  * the job and renders the response body (JSON text or the SVG plot), so the event loop only
- * sends it. A ModelError is returned as data: its code and field path would not survive the
- * thread boundary as a thrown error.
+ * sends it. A ModelError comes back as data (workerReply.ts).
  */
-import { ModelError, type ProblemCode } from '../problem.js';
 import { plotCycle } from '../report/svg/plotCycle.js';
 import type { Drivetrain } from '../solver/drivetrain.js';
 import { drivetrainFor, type DrivetrainRef } from '../solver/tableWorker.js';
 import { runCycleJob, type CycleJobOptions } from '../vehicle/cycleJob.js';
 import type { Cycle, Vehicle } from '../vehicle/schema.js';
+import { replyOf, type WorkerReply } from './workerReply.js';
 
 /** What the body holds: the answer as JSON, or the SVG plot of the run (needs `series`). */
 export type CycleBodyFormat = 'json' | 'svg';
@@ -23,9 +22,7 @@ export interface CycleTask extends DrivetrainRef {
   format: CycleBodyFormat;
 }
 
-export type CycleTaskReply =
-  | { ok: true; body: string }
-  | { ok: false; error: { code: ProblemCode; message: string; path?: string } };
+export type CycleTaskReply = WorkerReply<string>;
 
 /** Solves a cycle job and renders its response body (the same text in process and on a worker). */
 export function cycleBody(dt: Drivetrain, vehicle: Vehicle, cycle: Cycle, options: CycleJobOptions, format: CycleBodyFormat): string {
@@ -34,10 +31,5 @@ export function cycleBody(dt: Drivetrain, vehicle: Vehicle, cycle: Cycle, option
 }
 
 export default function runCycleTask(task: CycleTask): CycleTaskReply {
-  try {
-    return { ok: true, body: cycleBody(drivetrainFor(task), task.vehicle, task.cycle, task.options, task.format) };
-  } catch (err) {
-    if (!(err instanceof ModelError)) throw err;
-    return { ok: false, error: { code: err.code, message: err.message, ...(err.path !== undefined ? { path: err.path } : {}) } };
-  }
+  return replyOf(() => cycleBody(drivetrainFor(task), task.vehicle, task.cycle, task.options, task.format));
 }

@@ -6,11 +6,11 @@
  * path (and so answered 4xx as in process).
  */
 import type { MachineDoc } from '../machine/schema.js';
-import { ModelError } from '../problem.js';
 import type { TablePool } from '../solver/tablePool.js';
 import { workerScript, type WorkerScript } from '../solver/workerScript.js';
 import { buildMachine, type BuiltMachine, type MachineBuilder } from '../store/registry.js';
 import type { MachineTask, MachineTaskReply } from './machineWorker.js';
+import { valueOf } from './workerReply.js';
 import type { WorkerPool } from './workerPool.js';
 
 let script: WorkerScript | undefined;
@@ -32,8 +32,7 @@ export function buildsOnPool(doc: MachineDoc): boolean {
 export async function buildMachinePooled(pool: TablePool, name: string, doc: MachineDoc, signal?: AbortSignal): Promise<BuiltMachine> {
   script ??= workerScript(import.meta.url, 'machineWorker');
   const reply = await pool.runScript<MachineTask, MachineTaskReply>(script, { name, doc }, signal);
-  if (!reply.ok) throw new ModelError(reply.error.code, reply.error.message, reply.error.path);
-  const { map, summary, hash } = reply.built;
+  const { map, summary, hash } = valueOf(reply);
   // The in-process map is frozen; the copy that crossed the thread boundary is frozen again.
   return { map: Object.freeze(map), summary, hash };
 }

@@ -8,17 +8,15 @@
  */
 import { move, transferableSymbol, valueSymbol } from 'piscina';
 import type { MachineDoc } from '../machine/schema.js';
-import { ModelError, type ProblemCode } from '../problem.js';
 import { buildMachine, type BuiltMachine } from '../store/registry.js';
+import { replyOf, type WorkerReply } from './workerReply.js';
 
 export interface MachineTask {
   name: string;
   doc: MachineDoc;
 }
 
-export type MachineTaskReply =
-  | { ok: true; built: BuiltMachine }
-  | { ok: false; error: { code: ProblemCode; message: string; path?: string } };
+export type MachineTaskReply = WorkerReply<BuiltMachine>;
 
 /** The distinct buffers under a map's arrays (each is its own allocation today; a shared one is sent once). */
 function mapBuffers(built: BuiltMachine): ArrayBuffer[] {
@@ -28,14 +26,7 @@ function mapBuffers(built: BuiltMachine): ArrayBuffer[] {
 }
 
 export default function runMachineTask(task: MachineTask): unknown {
-  let built: BuiltMachine;
-  try {
-    built = buildMachine(task.name, task.doc);
-  } catch (err) {
-    if (!(err instanceof ModelError)) throw err;
-    const reply: MachineTaskReply = { ok: false, error: { code: err.code, message: err.message, ...(err.path !== undefined ? { path: err.path } : {}) } };
-    return reply;
-  }
-  const reply: MachineTaskReply = { ok: true, built };
-  return move({ [transferableSymbol]: mapBuffers(built), [valueSymbol]: reply } as Parameters<typeof move>[0]);
+  const reply: MachineTaskReply = replyOf(() => buildMachine(task.name, task.doc));
+  if (!reply.ok) return reply;
+  return move({ [transferableSymbol]: mapBuffers(reply.value), [valueSymbol]: reply } as Parameters<typeof move>[0]);
 }
