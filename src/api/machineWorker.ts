@@ -9,6 +9,7 @@
 import { move, transferableSymbol, valueSymbol } from 'piscina';
 import type { MachineDoc } from '../machine/schema.js';
 import { buildMachine, type BuiltMachine } from '../store/registry.js';
+import { movableBuffers } from './transfer.js';
 import { replyOf, type WorkerReply } from './workerReply.js';
 
 export interface MachineTask {
@@ -18,15 +19,13 @@ export interface MachineTask {
 
 export type MachineTaskReply = WorkerReply<BuiltMachine>;
 
-/** The distinct buffers under a map's arrays (each is its own allocation today; a shared one is sent once). */
-function mapBuffers(built: BuiltMachine): ArrayBuffer[] {
+function mapArrays(built: BuiltMachine): ArrayBufferView[] {
   const m = built.map;
-  const arrays = [m.speedRadS, m.torqueNm, m.lossW, m.maxTorqueNm, m.minTorqueNm];
-  return [...new Set(arrays.map((a) => a.buffer as ArrayBuffer))];
+  return [m.speedRadS, m.torqueNm, m.lossW, m.maxTorqueNm, m.minTorqueNm];
 }
 
 export default function runMachineTask(task: MachineTask): unknown {
   const reply: MachineTaskReply = replyOf(() => buildMachine(task.name, task.doc));
   if (!reply.ok) return reply;
-  return move({ [transferableSymbol]: mapBuffers(reply.value), [valueSymbol]: reply } as Parameters<typeof move>[0]);
+  return move({ [transferableSymbol]: movableBuffers(mapArrays(reply.value)), [valueSymbol]: reply } as Parameters<typeof move>[0]);
 }

@@ -12,20 +12,9 @@ import { solveRowBlocks, type TablePool } from '../solver/tablePool.js';
 import type { ResolvedTableSpec } from '../solver/tableSpec.js';
 import { workerScript, type WorkerScript } from '../solver/workerScript.js';
 import type { TableBodyTask } from './tableBodyWorker.js';
+import { movableBuffers } from './transfer.js';
 
 let script: WorkerScript | undefined;
-
-/** Buffers that each belong to one whole array alone: safe to move (others are copied). */
-function movableBuffers(arrays: readonly ArrayBufferView[]): ArrayBuffer[] {
-  const seen = new Set<ArrayBufferLike>();
-  const shared = new Set<ArrayBufferLike>();
-  for (const a of arrays) {
-    const b = a.buffer;
-    if (!(b instanceof ArrayBuffer) || a.byteOffset !== 0 || a.byteLength !== b.byteLength || seen.has(b)) shared.add(b);
-    seen.add(b);
-  }
-  return [...seen].filter((b): b is ArrayBuffer => !shared.has(b));
-}
 
 function blockArrays(b: RowBlock): ArrayBufferView[] {
   return [b.feasible, b.mode, b.values, b.maxMotoringWheelNm, b.maxBrakingWheelNm, b.altCell, b.altMode, b.altValues];
