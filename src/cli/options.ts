@@ -1,5 +1,6 @@
 /** Options shared by several commands, and the parsers of their values. */
 import { Option, type Command } from 'commander';
+import { parseModeText } from '../solver/modes.js';
 import { MODES, type Mode } from '../solver/types.js';
 import { CliError, isFileRef, type SourceOptions } from './context.js';
 
@@ -18,18 +19,7 @@ export function sourceOf(opts: { maps: string; data: string; url?: string }): So
 
 /** `--modes split,locked` → the listed modes, each checked against MODES. */
 export function parseModes(text: string | undefined): Mode[] | undefined {
-  if (text === undefined) return undefined;
-  const list = text
-    .split(',')
-    .map((s) => s.trim())
-    .filter((s) => s !== '');
-  if (list.length === 0) throw new CliError('invalid-request', '--modes needs at least one mode', '--modes');
-  for (const m of list) {
-    if (!(MODES as readonly string[]).includes(m)) {
-      throw new CliError('invalid-request', `--modes: unknown mode "${m}"; the modes are ${MODES.join(', ')}`, '--modes');
-    }
-  }
-  return [...new Set(list)] as Mode[];
+  return text === undefined ? undefined : parseModeText(text, '--modes');
 }
 
 export const MODES_HELP = `restrict the optimum to these modes, comma-separated (${MODES.join(', ')})`;

@@ -2,6 +2,7 @@
  * Mode availability and dispatch (DESIGN.md §5): split always; ring-held needs a ring brake,
  * sun-held a sun brake, locked a lock-up clutch. Mode indices follow MODES.
  */
+import { ModelError } from '../problem.js';
 import { MODES, type Mode } from './types.js';
 import type { Drivetrain } from './drivetrain.js';
 import { MODE_LOCKED, MODE_RING_HELD, MODE_SPLIT, MODE_SUN_HELD } from './modeIndex.js';
@@ -9,6 +10,20 @@ import { solveSplit, splitRange } from './split.js';
 import { heldCanTurn, solveHeld } from './held.js';
 import { lockedCanTurn, solveLocked } from './locked.js';
 import type { Candidate } from './work.js';
+
+/**
+ * Modes written as text, for query strings and the command line: comma-separated names from
+ * MODES (repeats dropped). An empty entry or an unknown name is `invalid-request` at `field`.
+ */
+export function parseModeText(text: string, field: string): Mode[] {
+  const list = text.split(',').map((s) => s.trim());
+  for (const m of list) {
+    if (!(MODES as readonly string[]).includes(m)) {
+      throw new ModelError('invalid-request', `${field}: ${m === '' ? 'an empty entry' : `unknown mode "${m}"`}; the modes are ${MODES.join(', ')}`, field);
+    }
+  }
+  return [...new Set(list)] as Mode[];
+}
 
 /** Bit mask of the modes to consider: those requested (all when omitted) that the hardware allows. */
 export function modeMask(dt: Drivetrain, modes?: readonly Mode[]): number {

@@ -5,7 +5,7 @@ import { plotMachine } from '../../report/svg/plotMachine.js';
 import { plotTable } from '../../report/svg/plotTable.js';
 import { describeDrivetrain } from '../../solver/drivetrain.js';
 import { resolveTableSpec } from '../../solver/tableSpec.js';
-import { MODES } from '../../solver/types.js';
+import { parseModeText } from '../../solver/modes.js';
 import { contentHash } from '../../store/hash.js';
 import { ApiError } from '../errors.js';
 import { errorBodySchema, nameParams } from '../schemas.js';
@@ -36,15 +36,12 @@ export const plotRoutes: FastifyPluginAsyncZod = async (app) => {
       const { dt, hash: dtHash } = drivetrainOr404(app, req.params.name);
       const facts = describeDrivetrain(dt);
       const tmax = Math.ceil(Math.max(facts.standstillMaxWheelNm, 1));
-      const modes = req.query.modes ? req.query.modes.split(',').map((m) => m.trim()) : undefined;
-      if (modes) {
-        for (const m of modes) if (!(MODES as readonly string[]).includes(m)) throw new ApiError('invalid-request', `unknown mode "${m}"`, 'modes');
-      }
+      const modes = req.query.modes ? parseModeText(req.query.modes, 'modes') : undefined;
       const spec = resolveTableSpec(
         {
           speedRpm: axisFromQuery(req.query.speedRpm, 'speedRpm', { from: 0, to: Math.floor(facts.maxWheelSpeedRpm), steps: 81 }),
           torqueNm: axisFromQuery(req.query.torqueNm, 'torqueNm', { from: -tmax, to: tmax, steps: 81 }),
-          ...(modes ? { modes: modes as (typeof MODES)[number][] } : {}),
+          ...(modes ? { modes } : {}),
           modeSwitchMarginW: req.query.modeSwitchMarginW,
         },
         201 * 201,

@@ -1,6 +1,8 @@
 /** zod schemas of the solver's requests and answers (documentation and validation). */
 import { z } from 'zod';
+import { parseModeText } from '../../solver/modes.js';
 import { MODES } from '../../solver/types.js';
+import { ModelError } from '../../problem.js';
 
 export const modeSchema = z.enum(MODES);
 
@@ -32,14 +34,13 @@ export const pointQuerySchema = z
     modes: z
       .string()
       .transform((text, ctx) => {
-        const list = text.split(',').map((m) => m.trim());
-        for (const m of list) {
-          if (!(MODES as readonly string[]).includes(m)) {
-            ctx.addIssue({ code: 'custom', message: `unknown mode "${m}"; modes are ${MODES.join(', ')}` });
-            return z.NEVER;
-          }
+        try {
+          return parseModeText(text, 'modes');
+        } catch (err) {
+          if (!(err instanceof ModelError)) throw err;
+          ctx.addIssue({ code: 'custom', message: err.message });
+          return z.NEVER;
         }
-        return list as (typeof MODES)[number][];
       })
       .optional()
       .describe(`Only consider these modes, comma-separated (${MODES.join(', ')})`),
