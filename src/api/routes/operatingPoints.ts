@@ -19,6 +19,13 @@ export const operatingPointRoutes: FastifyPluginAsyncZod = async (app) => {
   const pointsSchema = z.array(wheelPointSchema).min(1).describe(`Wheel points, at most ${maxPoints} per request`);
   const responses = { 200: z.object({ results: z.array(pointResultSchema) }), 400: errorBodySchema, 404: errorBodySchema, 413: errorBodySchema, 422: errorBodySchema };
 
+  const stored = (name: string): Drivetrain => {
+    const dt = app.registry.getDrivetrain(name);
+    if (!dt) throw new ApiError('not-found', `no drivetrain named "${name}"`);
+    return dt;
+  };
+  const solveOptions = (modes: Mode[] | undefined, strict: boolean, alternatives: boolean) => (modes ? { modes, strict, alternatives } : { strict, alternatives });
+
   const answer = async (
     dt: Drivetrain,
     points: Array<{ wheelSpeedRpm: number; wheelTorqueNm: number }>,
@@ -30,7 +37,7 @@ export const operatingPointRoutes: FastifyPluginAsyncZod = async (app) => {
       throw new ApiError('too-large', `${points.length} points in one request; at most ${maxPoints} are allowed — split the batch`, 'points');
     }
     app.metrics.solverPoints.inc(points.length);
-    const opts = modes ? { modes, strict, alternatives } : { strict, alternatives };
+    const opts = solveOptions(modes, strict, alternatives);
     const results: PointResult[] = [];
     for (let i = 0; i < points.length; i += CHUNK_POINTS) {
       if (i > 0) await yieldToEventLoop();
@@ -52,11 +59,7 @@ export const operatingPointRoutes: FastifyPluginAsyncZod = async (app) => {
         response: responses,
       },
     },
-    async (req) => {
-      const dt = app.registry.getDrivetrain(req.params.name);
-      if (!dt) throw new ApiError('not-found', `no drivetrain named "${req.params.name}"`);
-      return answer(dt, req.body.points, req.body.modes, req.body.strict, req.body.alternatives);
-    },
+    async (req) => answer(stored(req.params.name), req.body.points, req.body.modes, req.body.strict, req.body.alternatives),
   );
 
   app.get(
@@ -71,11 +74,10 @@ export const operatingPointRoutes: FastifyPluginAsyncZod = async (app) => {
       },
     },
     async (req) => {
-      const dt = app.registry.getDrivetrain(req.params.name);
-      if (!dt) throw new ApiError('not-found', `no drivetrain named "${req.params.name}"`);
       const q = req.query;
+      const dt = stored(req.params.name);
       app.metrics.solverPoints.inc(1);
-      return solvePoint(dt, q.wheelSpeedRpm, q.wheelTorqueNm, q.modes ? { modes: q.modes, strict: q.strict, alternatives: q.alternatives } : { strict: q.strict, alternatives: q.alternatives });
+      return solvePoint(dt, q.wheelSpeedRpm, q.wheelTorqueNm, solveOptions(q.modes, q.strict, q.alternatives));
     },
   );
 

@@ -6,49 +6,6 @@ import { ModelError } from '../../problem.js';
 
 export const modeSchema = z.enum(MODES);
 
-/** A decimal number written in a query string (an empty or partly numeric entry is refused, never read as 0). */
-function queryNumber(min: number, max: number) {
-  return z
-    .string()
-    .regex(/^\s*[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?\s*$/, 'must be a decimal number')
-    .transform(Number)
-    .pipe(z.number().min(min).max(max));
-}
-
-/** `true` or `false` in a query string. */
-function queryFlag(fallback: boolean) {
-  return z
-    .enum(['true', 'false'])
-    .default(fallback ? 'true' : 'false')
-    .transform((v) => v === 'true');
-}
-
-/**
- * Query of the single-point GET: the wheel point and the solve options of the batch body, as
- * query parameters (`modes` comma-separated).
- */
-export const pointQuerySchema = z
-  .object({
-    wheelSpeedRpm: queryNumber(-1e6, 1e6).describe('Wheel speed, rpm (negative: reversing); |n| <= 1e6'),
-    wheelTorqueNm: queryNumber(-1e8, 1e8).describe('Wheel torque, N·m (negative: braking when moving forward); |T| <= 1e8'),
-    modes: z
-      .string()
-      .transform((text, ctx) => {
-        try {
-          return parseModeText(text, 'modes');
-        } catch (err) {
-          if (!(err instanceof ModelError)) throw err;
-          ctx.addIssue({ code: 'custom', message: err.message });
-          return z.NEVER;
-        }
-      })
-      .optional()
-      .describe(`Only consider these modes, comma-separated (${MODES.join(', ')})`),
-    strict: queryFlag(false).describe('Braking beyond what machines and battery absorb is infeasible instead of using friction brakes'),
-    alternatives: queryFlag(true).describe('Include the best setting of every other feasible mode'),
-  })
-  .strict();
-
 export const wheelPointSchema = z
   .object({
     wheelSpeedRpm: z.number().min(-1e6).max(1e6).describe('Wheel speed, rpm (negative: reversing); |n| <= 1e6'),
@@ -64,6 +21,53 @@ export const solveOptionsSchema = {
     .default(true)
     .describe('Include the best setting of every other feasible mode (false: answers about half the size, for simulations stepping fast)'),
 };
+
+/** A decimal number written in a query string (an empty or partly numeric entry is refused, never read as 0). */
+function queryNumber(target: z.ZodNumber) {
+  return z
+    .string()
+    .regex(/^\s*[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?\s*$/, 'must be a decimal number')
+    .transform(Number)
+    .pipe(target)
+    .describe(target.description ?? '');
+}
+
+/** `true` or `false` in a query string, with the default and description of the body's flag. */
+function queryFlag(target: z.ZodDefault<z.ZodBoolean>) {
+  const fallback = target.parse(undefined);
+  return z
+    .enum(['true', 'false'])
+    .default(fallback ? 'true' : 'false')
+    .transform((v) => v === 'true')
+    .describe(target.description ?? '');
+}
+
+/**
+ * Query of the single-point GET: the wheel point and the solve options of the batch body, as
+ * query parameters (`modes` comma-separated).
+ */
+export const pointQuerySchema = z
+  .object({
+    wheelSpeedRpm: queryNumber(wheelPointSchema.shape.wheelSpeedRpm),
+    wheelTorqueNm: queryNumber(wheelPointSchema.shape.wheelTorqueNm),
+    modes: z
+      .string()
+      .transform((text, ctx) => {
+        try {
+          return parseModeText(text, 'modes');
+        } catch (err) {
+          if (!(err instanceof ModelError)) throw err;
+          ctx.addIssue({ code: 'custom', message: err.message });
+          return z.NEVER;
+        }
+      })
+      .optional()
+      .describe(`Only consider these modes, comma-separated (${MODES.join(', ')})`),
+    strict: queryFlag(solveOptionsSchema.strict),
+    alternatives: queryFlag(solveOptionsSchema.alternatives),
+  })
+  .strict();
+
 
 const machineStateSchema = z.object({
   speedRpm: z.number(),
