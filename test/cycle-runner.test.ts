@@ -3,7 +3,7 @@
  * the threads are shared with tables, and a ModelError raised inside the worker comes back as a
  * ModelError with the same code, message and path.
  */
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { afterAll, describe, expect, it } from 'vitest';
 import { cycleBodyPooled } from '../src/api/cycleRunner.js';
 import { cycleBody } from '../src/api/cycleWorker.js';
 import { ModelError } from '../src/problem.js';
@@ -17,13 +17,9 @@ import { catchModelError } from './support/modelError.js';
 import { testDrivetrain, testVehicle } from './support/syntheticDrivetrain.js';
 
 describe('cycle jobs on the worker pool', () => {
-  let pool: TablePool;
-  beforeAll(() => {
-    pool = new TablePool({ threads: 2 });
-  });
-  afterAll(async () => {
-    await pool.close();
-  });
+  // Threads start on first use (piscina minThreads 0).
+  const pool = new TablePool({ threads: 2 });
+  afterAll(() => pool.close());
   const dt = testDrivetrain();
   const vehicle = testVehicle({ auxiliaryW: 300 });
   const nedc = getBuiltinCycle('nedc');

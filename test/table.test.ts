@@ -172,13 +172,9 @@ describe('mode-switch margin', () => {
 });
 
 describe('table on a worker pool', () => {
-  let pool: TablePool;
-  beforeAll(() => {
-    pool = new TablePool({ threads: 2 });
-  });
-  afterAll(async () => {
-    await pool.close();
-  });
+  // Threads start on first use (piscina minThreads 0).
+  const pool = new TablePool({ threads: 2 });
+  afterAll(() => pool.close());
 
   function comparable(t: LookupTable) {
     const { generatedAt: _ignored, cells, envelope, speedRpm, torqueNm, ...rest } = t;
