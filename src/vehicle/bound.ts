@@ -48,13 +48,9 @@ function stepwiseSwitches(modeIndex: Int8Array): number {
   return n;
 }
 
-/**
- * Bound from a cycle run made with `modeEnergies: true`. The time per mode along the bound's
- * sequence needs the step durations, s: the run's series when it has one, else `durationsS`
- * (without either, `boundModeTimeS` is empty).
- */
-export function boundFromRun(run: CycleResult, switchCostWh = 0, durationsS: ArrayLike<number> | undefined = run.series?.durationS): CycleBound {
-  if (!run.modeEnergyWh || !run.modeIndex) throw new RangeError('the cycle run lacks per-mode energies (run it with modeEnergies: true)');
+/** Bound from a cycle run made with `modeEnergies: true` (per-mode energies, modes and step durations). */
+export function boundFromRun(run: CycleResult, switchCostWh = 0): CycleBound {
+  if (!run.modeEnergyWh || !run.modeIndex || !run.stepDurationS) throw new RangeError('the cycle run lacks per-mode energies (run it with modeEnergies: true)');
   const steps = run.steps;
   const nm = MODES.length;
   const seq = bestModeSequence(run.modeEnergyWh, steps, nm, switchCostWh);
@@ -65,13 +61,11 @@ export function boundFromRun(run: CycleResult, switchCostWh = 0, durationsS: Arr
   }
   const switches = stepwiseSwitches(run.modeIndex);
   const stepwiseWh = stepwiseEnergyWh + switches * switchCostWh;
-  const durations = durationsS;
+  const durations = run.stepDurationS;
   const boundModeTimeS: Partial<Record<Mode, number>> = {};
-  if (durations) {
-    for (let k = 0; k < steps; k++) {
-      const mode = MODES[seq.modes[k]!]!;
-      boundModeTimeS[mode] = (boundModeTimeS[mode] ?? 0) + durations[k]!;
-    }
+  for (let k = 0; k < steps; k++) {
+    const mode = MODES[seq.modes[k]!]!;
+    boundModeTimeS[mode] = (boundModeTimeS[mode] ?? 0) + durations[k]!;
   }
   const gapWh = Math.max(0, stepwiseWh - seq.totalWh);
   return {
@@ -95,7 +89,7 @@ export interface CycleBoundOptions extends Omit<CycleRunOptions, 'modeEnergies' 
 
 /** Runs the cycle and returns the bound for each of the given switch costs (Wh). */
 export function cycleBounds(dt: Drivetrain, vehicle: Vehicle, cycle: Cycle, switchCostsWh: readonly number[], opts: Omit<CycleBoundOptions, 'switchCostWh'> = {}): CycleBound[] {
-  const run = runCycle(dt, vehicle, cycle, { ...opts, modeEnergies: true, series: true });
+  const run = runCycle(dt, vehicle, cycle, { ...opts, modeEnergies: true });
   return switchCostsWh.map((c) => boundFromRun(run, c));
 }
 

@@ -125,6 +125,8 @@ export interface CycleResult {
   modeEnergyWh?: Float64Array;
   /** Index in MODES of the mode used in each step; −1 where no setting existed (when modeEnergies is asked). */
   modeIndex?: Int8Array;
+  /** Duration of each step, s (when modeEnergies is asked). */
+  stepDurationS?: Float64Array;
 }
 
 /** Solves one step's electric request, falling back to the largest deliverable torque. */
@@ -324,6 +326,7 @@ export function runCycle(dt: Drivetrain, vehicle: Vehicle, cycle: Cycle, opts: C
   if (energies) {
     result.modeEnergyWh = energies;
     result.modeIndex = modeIndex!;
+    result.stepDurationS = demand.dtS;
   }
   return result;
 }

@@ -34,14 +34,6 @@ export interface CycleJobAnswer {
   bounds?: CycleBound[];
 }
 
-/** Duration of each step of a cycle, s: the sample-time differences the road load uses. */
-function stepDurationsS(cycle: Cycle): Float64Array {
-  const n = cycle.timeS.length - 1;
-  const d = new Float64Array(n);
-  for (let k = 0; k < n; k++) d[k] = cycle.timeS[k + 1]! - cycle.timeS[k]!;
-  return d;
-}
-
 /** Runs what a cycle job asks for on `dt`; the answer is plain data (structured-clone and JSON safe). */
 export function runCycleJob(dt: Drivetrain, vehicle: Vehicle, cycle: Cycle, opts: CycleJobOptions = {}): CycleJobAnswer {
   const solve: SolveOptions = opts.modes ? { modes: opts.modes } : {};
@@ -54,8 +46,7 @@ export function runCycleJob(dt: Drivetrain, vehicle: Vehicle, cycle: Cycle, opts
   });
   let bounds: CycleBound[] | undefined;
   if (costs) {
-    const durations = result.series?.durationS ?? stepDurationsS(cycle);
-    bounds = costs.map((c) => boundFromRun(result, c, durations));
+    bounds = costs.map((c) => boundFromRun(result, c));
   }
   let comparison: LayoutComparison | undefined;
   if (opts.compare) {
@@ -65,5 +56,6 @@ export function runCycleJob(dt: Drivetrain, vehicle: Vehicle, cycle: Cycle, opts
   }
   delete result.modeEnergyWh;
   delete result.modeIndex;
+  delete result.stepDurationS;
   return { result, ...(comparison ? { comparison } : {}), ...(bounds ? { bounds } : {}) };
 }
