@@ -32,7 +32,7 @@ function sameAsReference(x: number): boolean {
 
 describe('C float literal', () => {
   it('equals the reference for edge values', () => {
-    const FLT_MAX = 3.4028234663852886e38; // largest float32 (common practice)
+    const FLT_MAX = 3.4028234663852886e38; // largest binary32, (2 − 2^−23)·2^127 (IEEE 754-2008; C FLT_MAX, ISO/IEC 9899:2011 §5.2.4.2.2, from memory)
     const edges = [
       0, -0, Number.NaN, Infinity, -Infinity, FLT_MAX, -FLT_MAX, 3.5e38, -1e39, Number.MAX_VALUE, -Number.MAX_VALUE,
       1.401298464324817e-45, -1.401298464324817e-45, 1e-46, 5e-324, -5e-324, 1.1754942106924411e-38, 1.1754943508222875e-38,
@@ -71,7 +71,7 @@ describe('C float literal', () => {
   });
 
   it('reads back to the same float with at most nine significant digits', () => {
-    // Nine significant digits always identify a float32 (common practice).
+    // Nine significant digits always identify a binary32 value (FLT_DECIMAL_DIG = 9, ISO/IEC 9899:2011 §5.2.4.2.2, from memory).
     fc.assert(
       fc.property(fc.float({ noNaN: true, noDefaultInfinity: true }), (f) => {
         const s = shortestFloat32Text(f);
