@@ -11,8 +11,9 @@ import type { RowBlock } from '../solver/table.js';
 import { solveRowBlocks, type TablePool } from '../solver/tablePool.js';
 import type { ResolvedTableSpec } from '../solver/tableSpec.js';
 import { workerScript, type WorkerScript } from '../solver/workerScript.js';
-import type { TableBodyTask } from './tableBodyWorker.js';
+import type { TableBodyReply, TableBodyTask } from './tableBodyWorker.js';
 import { movableBuffers } from './transfer.js';
+import { valueOf } from './workerReply.js';
 
 let script: WorkerScript | undefined;
 
@@ -30,6 +31,6 @@ export async function tableBodyPooled(pool: TablePool, dt: Drivetrain, dtHash: s
   script ??= workerScript(import.meta.url, 'tableBodyWorker');
   const task: TableBodyTask = { name: dt.name, spec, blocks, hash, format: spec.format };
   const moved = move({ [transferableSymbol]: movableBuffers(blocks.flatMap(blockArrays)), [valueSymbol]: task } as Parameters<typeof move>[0]);
-  const bytes = await pool.runScript<unknown, Uint8Array>(script, moved);
+  const bytes = valueOf(await pool.runScript<unknown, TableBodyReply>(script, moved));
   return Buffer.from(bytes.buffer, bytes.byteOffset, bytes.byteLength);
 }

@@ -4,12 +4,13 @@
  * (`assembleTable`: margin, smoothness) and renders the response body. Both take about a second
  * or more for a table of a million cells; here they leave the event loop free. The body comes
  * back as its UTF-8 bytes, moved rather than copied, so the event loop neither copies nor
- * encodes it before sending.
+ * encodes it before sending. A ModelError comes back as data (workerReply.ts).
  */
-import { move } from 'piscina';
+import { move, transferableSymbol, valueSymbol } from 'piscina';
 import { tableBody } from '../report/tableBody.js';
 import { assembleTable, type RowBlock } from '../solver/table.js';
 import type { ResolvedTableSpec, TableFormat } from '../solver/tableSpec.js';
+import { replyOf, type WorkerReply } from './workerReply.js';
 
 export interface TableBodyTask {
   /** Drivetrain name. */
@@ -21,8 +22,11 @@ export interface TableBodyTask {
   format: TableFormat;
 }
 
+export type TableBodyReply = WorkerReply<Uint8Array>;
+
 export default function renderTableBody(task: TableBodyTask): unknown {
-  const table = assembleTable(task.name, task.spec, task.blocks, task.hash);
   // TextEncoder gives the bytes their own buffer (never a shared pool slab), so it can move.
-  return move(new TextEncoder().encode(tableBody(table, task.format)));
+  const reply: TableBodyReply = replyOf(() => new TextEncoder().encode(tableBody(assembleTable(task.name, task.spec, task.blocks, task.hash), task.format)));
+  if (!reply.ok) return reply;
+  return move({ [transferableSymbol]: [reply.value.buffer], [valueSymbol]: reply } as Parameters<typeof move>[0]);
 }
