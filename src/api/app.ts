@@ -62,14 +62,16 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
   app.addHook('preClose', async () => {
     closing = true;
   });
-  app.addHook('onRequest', async (_request, reply) => {
-    if (!closing) return;
+  // Hooks on every request take the callback form: no promise per request.
+  app.addHook('onRequest', (_request, reply, done) => {
+    if (!closing) return done();
     reply.header('connection', 'close').header('retry-after', '5');
-    return sendError(reply, 'overloaded', 'the service is shutting down; retry on another instance or after it restarts');
+    sendError(reply, 'overloaded', 'the service is shutting down; retry on another instance or after it restarts');
   });
-  app.addHook('onSend', async (request, reply) => {
+  app.addHook('onSend', (request, reply, payload, done) => {
     reply.header('x-request-id', request.id);
     if (closing) reply.header('connection', 'close');
+    done(null, payload);
   });
   app.addContentTypeParser(['text/csv', 'text/plain'], { parseAs: 'string' }, (_req, body, done) => done(null, body));
 
