@@ -38,10 +38,11 @@ export const metricsPlugin = fp(async (app: FastifyInstance) => {
   });
   app.decorate('metrics', { registry, solverPoints, jobSeconds } satisfies Metrics);
 
-  app.addHook('onResponse', async (request, reply) => {
+  app.addHook('onResponse', (request, reply, done) => {
     const route = request.routeOptions.url ?? 'unmatched';
     requests.inc({ route, method: request.method, status: String(reply.statusCode) });
     latency.observe({ route, method: request.method }, reply.elapsedTime / 1000);
+    done();
   });
 
   app.get('/metrics', { schema: { hide: true } }, async (_req, reply) => {
