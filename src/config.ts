@@ -17,6 +17,8 @@ export interface Config {
   requestTimeoutMs: number;
   /** Event-loop delay above which the service sheds load with 503, ms (0: off). */
   maxEventLoopDelayMs: number;
+  /** Size of the kept single-point answers, MiB (0: keep none). */
+  pointCacheMiB: number;
 }
 
 function intFrom(env: NodeJS.ProcessEnv, key: string, fallback: number): number {
@@ -40,5 +42,6 @@ export function configFromEnv(env: NodeJS.ProcessEnv = process.env): Config {
     maxJobs: intFrom(env, 'MAX_JOBS', 4),
     requestTimeoutMs: intFrom(env, 'REQUEST_TIMEOUT_MS', 300_000),
     maxEventLoopDelayMs: intFrom(env, 'MAX_EVENT_LOOP_DELAY_MS', 2000),
+    pointCacheMiB: intFrom(env, 'POINT_CACHE_MIB', 32),
   };
 }

@@ -60,6 +60,32 @@ describe('drivetrains and operating points over HTTP', () => {
     }
   });
 
+  it('keeps single-point answers for the drivetrain they were solved on, and starts afresh when it changes', async () => {
+    const url = '/v1/drivetrains/cached/operating-point?wheelSpeedRpm=350&wheelTorqueNm=700';
+    const doc = (await request(ctx.srv.url).get('/v1/drivetrains/van-axle').expect(200)).body.document;
+    await request(ctx.srv.url).put('/v1/drivetrains/cached').send(doc).expect(201);
+    const first = await request(ctx.srv.url).get(url).expect(200);
+    const again = await request(ctx.srv.url).get(url).expect(200);
+    expect(again.text).toBe(first.text);
+    // A small batch is put together from the same answers, as JSON.stringify({ results }) would print it.
+    const batch = await request(ctx.srv.url)
+      .post('/v1/drivetrains/cached/operating-points')
+      .send({ points: [{ wheelSpeedRpm: 350, wheelTorqueNm: 700 }, { wheelSpeedRpm: 350, wheelTorqueNm: 700 }] })
+      .expect(200);
+    expect(batch.headers['content-type']).toMatch(/^application\/json/);
+    expect(batch.text).toBe(`{"results":[${first.text},${first.text}]}`);
+    await request(ctx.srv.url).put('/v1/drivetrains/cached').send({ ...doc, auxiliaryW: doc.auxiliaryW + 1000 }).expect(200);
+    const changed = await request(ctx.srv.url).get(url).expect(200);
+    const dt = ctx.srv.app.registry.getDrivetrain('cached')!;
+    expect(changed.text).toBe(JSON.stringify(solvePoint(dt, 350, 700)));
+    // Auxiliary load is drawn from the battery one for one (common practice).
+    expect(changed.body.batteryW - first.body.batteryW).toBeCloseTo(1000, 6);
+    const metrics = (await request(ctx.srv.url).get('/metrics').expect(200)).text;
+    expect(metrics).toMatch(/^episplit_point_answers_total\{source="kept"\} [1-9]/m);
+    expect(metrics).toMatch(/^episplit_point_answers_kept [1-9]/m);
+    await request(ctx.srv.url).delete('/v1/drivetrains/cached').expect(204);
+  });
+
   it('refuses a bad single-point query with the field path, never reading an empty value as 0', async () => {
     const bad: Array<[string, string]> = [
       ['wheelSpeedRpm=&wheelTorqueNm=600', 'querystring.wheelSpeedRpm'],

@@ -4,12 +4,21 @@
  */
 import type { FastifyInstance } from 'fastify';
 import fp from 'fastify-plugin';
-import { collectDefaultMetrics, Counter, Histogram, Registry } from 'prom-client';
+import { collectDefaultMetrics, Counter, Gauge, Histogram, Registry } from 'prom-client';
+
+/** What the kept single-point answers report (see PointAnswers). */
+export interface KeptAnswerCounts {
+  readonly hits: number;
+  readonly misses: number;
+  readonly size: number;
+}
 
 export interface Metrics {
   registry: Registry;
   solverPoints: Counter;
   jobSeconds: Histogram<'kind'>;
+  /** Reports a store of kept point answers at each scrape. */
+  keptAnswers(counts: KeptAnswerCounts): void;
 }
 
 export const metricsPlugin = fp(async (app: FastifyInstance) => {
@@ -36,7 +45,28 @@ export const metricsPlugin = fp(async (app: FastifyInstance) => {
     buckets: [0.01, 0.05, 0.1, 0.5, 1, 2, 5, 10, 30, 60, 120],
     registers: [registry],
   });
-  app.decorate('metrics', { registry, solverPoints, jobSeconds } satisfies Metrics);
+  const keptAnswers = (counts: KeptAnswerCounts) => {
+    new Counter({
+      name: 'episplit_point_answers_total',
+      help: 'Single-point answers by source: kept from an earlier request, or solved',
+      labelNames: ['source'] as const,
+      registers: [registry],
+      collect() {
+        this.reset();
+        this.inc({ source: 'kept' }, counts.hits);
+        this.inc({ source: 'solved' }, counts.misses);
+      },
+    });
+    new Gauge({
+      name: 'episplit_point_answers_kept',
+      help: 'Single-point answers kept for reuse',
+      registers: [registry],
+      collect() {
+        this.set(counts.size);
+      },
+    });
+  };
+  app.decorate('metrics', { registry, solverPoints, jobSeconds, keptAnswers } satisfies Metrics);
 
   app.addHook('onResponse', (request, reply, done) => {
     const route = request.routeOptions.url ?? 'unmatched';

@@ -1,16 +1,21 @@
 /** The optimum at wheel operating points: a batch for a stored drivetrain or one sent inline, or one point by GET. */
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
 import { z } from 'zod';
-import { solvePoint, solvePoints } from '../../solver/point.js';
+import { solvePoints } from '../../solver/point.js';
 import type { Drivetrain } from '../../solver/drivetrain.js';
 import type { Mode, PointResult } from '../../solver/types.js';
 import { ApiError } from '../errors.js';
+import { PointAnswers } from '../pointAnswers.js';
 import { errorBodySchema, nameParams } from '../schemas.js';
 import { pointQuerySchema, pointResultSchema, solveOptionsSchema, wheelPointSchema } from './solverSchemas.js';
 
 const BATCH_BODY_LIMIT = 64 * 1024 * 1024;
 /** Large batches are solved in chunks of this many points, yielding to the event loop between them. */
 const CHUNK_POINTS = 2000;
+
+/** Batches up to this many points are answered point by point through the kept answers. */
+const SMALL_BATCH_POINTS = 64;
+const JSON_TYPE = 'application/json; charset=utf-8';
 
 const yieldToEventLoop = () => new Promise<void>((resolve) => setImmediate(resolve));
 
@@ -24,6 +29,8 @@ export const operatingPointRoutes: FastifyPluginAsyncZod = async (app) => {
     if (!dt) throw new ApiError('not-found', `no drivetrain named "${name}"`);
     return dt;
   };
+  const kept = new PointAnswers(app.config.pointCacheMiB * 1024 * 1024);
+  app.metrics.keptAnswers(kept);
   const solveOptions = (modes: Mode[] | undefined, strict: boolean, alternatives: boolean) => (modes ? { modes, strict, alternatives } : { strict, alternatives });
 
   const answer = async (
@@ -59,7 +66,16 @@ export const operatingPointRoutes: FastifyPluginAsyncZod = async (app) => {
         response: responses,
       },
     },
-    async (req) => answer(stored(req.params.name), req.body.points, req.body.modes, req.body.strict, req.body.alternatives),
+    async (req, reply) => {
+      const { points, modes, strict, alternatives } = req.body;
+      const dt = stored(req.params.name);
+      if (points.length > SMALL_BATCH_POINTS) return answer(dt, points, modes, strict, alternatives);
+      // The text JSON.stringify gives for { results }, put together from the kept answers; fastify
+      // sends a string with a JSON content type as it is.
+      app.metrics.solverPoints.inc(points.length);
+      const texts = points.map((p) => kept.answer(dt, p, { modes, strict, alternatives }));
+      return reply.type(JSON_TYPE).send(`{"results":[${texts.join(',')}]}` as unknown as { results: PointResult[] });
+    },
   );
 
   app.get(
@@ -73,11 +89,11 @@ export const operatingPointRoutes: FastifyPluginAsyncZod = async (app) => {
         response: { 200: pointResultSchema, 400: errorBodySchema, 404: errorBodySchema },
       },
     },
-    async (req) => {
+    async (req, reply) => {
       const q = req.query;
       const dt = stored(req.params.name);
       app.metrics.solverPoints.inc(1);
-      return solvePoint(dt, q.wheelSpeedRpm, q.wheelTorqueNm, solveOptions(q.modes, q.strict, q.alternatives));
+      return reply.type(JSON_TYPE).send(kept.answer(dt, q, q) as unknown as PointResult);
     },
   );
 
