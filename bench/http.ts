@@ -1,14 +1,17 @@
 /**
  * HTTP throughput of the service on loopback. The server is the compiled build in a child
  * process (`node dist/server.js`, as `npm start` runs it; build first); autocannon loads it from
- * this process. In each round every endpoint gets the same time, one after the other, so all see
- * the same machine load; each figure is the median over rounds of the ratio against `GET /health`
- * in the same round. Endpoints: single points by GET (a spread over the speed × torque box, a
- * third beyond the limits; the wheel demand of an invented delivery van over the NEDC, with and
- * without alternatives) and by POST (the spread, one point per body). Beside throughput, the
- * server's own CPU time per request (from its /metrics) gives the cost ratio, which is what the
- * throughput ratio tends to when the server alone is the bottleneck. Then a 10 000-point batch
- * over HTTP against the same points solved in this process.
+ * this process, one autocannon per connection so that each connection sends its own sequence. In
+ * each round every endpoint gets the same time, one after the other, so all see the same machine
+ * load; each figure is the median over rounds of the ratio against `GET /health` in the same round.
+ * Single points by GET: a spread over the speed × torque box with every point new (about a third
+ * beyond the limits); the NEDC wheel demand of an invented delivery van, a new payload each pass,
+ * with and without alternatives (repeats only where the cycle repeats itself: standstill,
+ * cruise); and 256 points over and over (every answer kept from before). By POST: the spread, new
+ * points, one per body. Beside throughput, the server's own CPU time per request (from its
+ * /metrics) gives the cost ratio, which is what the throughput ratio tends to when the server alone
+ * is the bottleneck. Then a 10 000-point batch over HTTP against the same points solved in this
+ * process.
  *
  * Run alone: `npm run build && npx tsx bench/http.ts`. Figures are ratios within one run;
  * absolute rates depend on the machine and on whatever else runs on it.
@@ -134,15 +137,28 @@ async function startServer(port: number, dataDir: string, maxBatchPoints: number
   }
 }
 
+/**
+ * An endpoint's load: for round r (-1 is the warm-up) and connection c, the requests that
+ * connection sends in order. Each connection gets its own sequence (autocannon would otherwise
+ * walk one list from the start on every connection, so they would ask the same points at the same
+ * moment), and each round its own points, so answers kept from an earlier request are only reused
+ * where the workload itself repeats.
+ */
 interface Endpoint {
   label: string;
-  requests: autocannon.Request[];
+  requests: (round: number, connection: number) => autocannon.Request[];
 }
 
 interface RoundFigure {
   rps: number;
   cpuUs: number;
-  result: autocannon.Result;
+  requests: number;
+  duration: number;
+  p50: number;
+  p99: number;
+  non2xx: number;
+  errors: number;
+  timeouts: number;
 }
 
 export async function runHttpBench(opts: HttpBenchOptions = {}): Promise<Figures> {
@@ -168,51 +184,73 @@ export async function runHttpBench(opts: HttpBenchOptions = {}): Promise<Figures
     const batchRoute = `/v1/drivetrains/${DRIVETRAIN}/operating-points`;
     const oneRoute = `/v1/drivetrains/${DRIVETRAIN}/operating-point`;
     const get = (p: WheelPoint, extra = '') => ({ method: 'GET' as const, path: `${oneRoute}?wheelSpeedRpm=${p.wheelSpeedRpm}&wheelTorqueNm=${p.wheelTorqueNm}${extra}` });
-    const spread = spreadPoints(256, facts.maxWheelSpeedRpm, facts.standstillMaxWheelNm, 7);
-    // The NEDC wheel demand of an invented 2.6 t delivery van (our own demo scenario).
-    const van = parseVehicle({ massKg: 2600, rotatingMassFactor: 0.05, rollingResistance: 0.011, dragAreaM2: 1.9, auxiliaryW: 400 });
-    const demand = cycleWheelDemand(van, getBuiltinCycle('nedc'), dt.wheelRadiusM);
-    const cyclePoints = Array.from({ length: demand.steps }, (_, k) => ({ wheelSpeedRpm: radSToRpm(demand.wheelSpeedRadS[k]!), wheelTorqueNm: demand.wheelTorqueNm[k]! }));
+    const post = (p: WheelPoint) => ({ method: 'POST' as const, path: batchRoute, headers: { 'content-type': 'application/json' }, body: JSON.stringify({ points: [p] }) });
+    // More requests per connection and round than one connection answers in a round at 10 000 req/s.
+    const perStream = Math.ceil(roundS * 10_000);
+    const stream = (round: number, c: number) => 1 + (round + 1) * connections + c;
+    const spread = (round: number, c: number, salt: number) => spreadPoints(perStream, facts.maxWheelSpeedRpm, facts.standstillMaxWheelNm, 7919 * stream(round, c) + salt);
+    // The NEDC wheel demand of an invented delivery van (our own demo scenario), one pass per
+    // payload: each pass is a van 1 kg heavier than the one before, so passes share only the
+    // standstill points, and every repeat is one the cycle itself makes (idle, cruise).
+    const cycle = getBuiltinCycle('nedc');
+    const vanPass = (j: number): WheelPoint[] => {
+      const van = parseVehicle({ massKg: 2000 + j, rotatingMassFactor: 0.05, rollingResistance: 0.011, dragAreaM2: 1.9, auxiliaryW: 400 });
+      const demand = cycleWheelDemand(van, cycle, dt.wheelRadiusM);
+      return Array.from({ length: demand.steps }, (_, k) => ({ wheelSpeedRpm: radSToRpm(demand.wheelSpeedRadS[k]!), wheelTorqueNm: demand.wheelTorqueNm[k]! }));
+    };
+    const passLength = vanPass(0).length;
+    const passesPerStream = Math.ceil(perStream / passLength);
+    const nedc = (round: number, c: number) => Array.from({ length: passesPerStream }, (_, i) => vanPass(stream(round, c) * passesPerStream + i)).flat();
+    const fixedSpread = spreadPoints(256, facts.maxWheelSpeedRpm, facts.standstillMaxWheelNm, 7);
     const endpoints: Endpoint[] = [
-      { label: 'GET /health', requests: [{ method: 'GET', path: '/health' }] },
-      { label: `GET ${oneRoute} (spread over the speed × torque box, 256 points)`, requests: spread.map((p) => get(p)) },
-      {
-        label: `POST ${batchRoute} (the same spread, 1 point per body)`,
-        requests: spread.map((p) => ({ method: 'POST' as const, path: batchRoute, headers: { 'content-type': 'application/json' }, body: JSON.stringify({ points: [p] }) })),
-      },
-      { label: `GET ${oneRoute} (NEDC wheel demand of the demo van, ${cyclePoints.length} points)`, requests: cyclePoints.map((p) => get(p)) },
-      { label: `GET ${oneRoute} (the same drive-cycle points, alternatives=false)`, requests: cyclePoints.map((p) => get(p, '&alternatives=false')) },
+      { label: 'GET /health', requests: () => [{ method: 'GET', path: '/health' }] },
+      { label: `GET ${oneRoute} (spread over the speed × torque box, every point new)`, requests: (r, c) => spread(r, c, 1).map((p) => get(p)) },
+      { label: `POST ${batchRoute} (spread, every point new, 1 point per body)`, requests: (r, c) => spread(r, c, 2).map(post) },
+      { label: `GET ${oneRoute} (NEDC wheel demand of the demo van, ${passLength} steps a pass, a new payload each pass)`, requests: (r, c) => nedc(r, c).map((p) => get(p)) },
+      { label: `GET ${oneRoute} (the same drive-cycle passes, alternatives=false)`, requests: (r, c) => nedc(r, c).map((p) => get(p, '&alternatives=false')) },
+      { label: `GET ${oneRoute} (the same 256 points over and over: kept answers)`, requests: () => fixedSpread.map((p) => get(p)) },
     ];
 
-    log(`http bench: server ${SERVER} (child process) on ${base}; autocannon in this process, ${connections} connections; ${rounds} rounds × ${roundS} s per endpoint`);
-    const run = async (e: Endpoint, seconds: number): Promise<RoundFigure> => {
+    log(`http bench: server ${SERVER} (child process) on ${base}; autocannon in this process, ${connections} connections, each its own request sequence; ${rounds} rounds × ${roundS} s per endpoint`);
+    const run = async (e: Endpoint, round: number, seconds: number): Promise<RoundFigure> => {
+      const streams = Array.from({ length: connections }, (_, c) => e.requests(round, c));
       const c0 = await serverCpuS(base);
-      const result = await cannon({ url: base, connections, duration: seconds, requests: e.requests });
+      const results = await Promise.all(streams.map((requests) => cannon({ url: base, connections: 1, duration: seconds, requests })));
       const c1 = await serverCpuS(base);
-      const n = Math.max(1, result.requests.total);
-      return { rps: result.requests.total / result.duration, cpuUs: ((c1 - c0) * 1e6) / n, result };
+      const requests = results.reduce((s, x) => s + x.requests.total, 0);
+      const duration = Math.max(...results.map((x) => x.duration));
+      return {
+        rps: requests / duration,
+        cpuUs: ((c1 - c0) * 1e6) / Math.max(1, requests),
+        requests,
+        duration,
+        p50: median(results.map((x) => x.latency.p50)),
+        p99: Math.max(...results.map((x) => x.latency.p99)),
+        non2xx: results.reduce((s, x) => s + x.non2xx, 0),
+        errors: results.reduce((s, x) => s + x.errors, 0),
+        timeouts: results.reduce((s, x) => s + x.timeouts, 0),
+      };
     };
-    for (const e of endpoints) await run(e, 1); // warm-up: JIT, connections; not counted
+    for (const e of endpoints) await run(e, -1, 1); // warm-up: JIT, connections; not counted
     const per: RoundFigure[][] = endpoints.map(() => []);
-    for (let r = 0; r < rounds; r++) for (let i = 0; i < endpoints.length; i++) per[i]!.push(await run(endpoints[i]!, roundS));
+    for (let r = 0; r < rounds; r++) for (let i = 0; i < endpoints.length; i++) per[i]!.push(await run(endpoints[i]!, r, roundS));
 
     const health = per[0]!;
     const figures: EndpointFigures[] = endpoints.map((e, i) => {
       const rs = per[i]!;
-      const results = rs.map((x) => x.result);
-      const requests = results.reduce((s, x) => s + x.requests.total, 0);
+      const requests = rs.reduce((s, x) => s + x.requests, 0);
       return {
         label: e.label,
-        reqPerS: requests / results.reduce((s, x) => s + x.duration, 0),
+        reqPerS: requests / rs.reduce((s, x) => s + x.duration, 0),
         toHealth: median(rs.map((x, k) => x.rps / health[k]!.rps)),
         cpuUsPerReq: median(rs.map((x) => x.cpuUs)),
         costToHealth: median(rs.map((x, k) => health[k]!.cpuUs / x.cpuUs)),
-        p50Ms: median(results.map((x) => x.latency.p50)),
-        p99Ms: Math.max(...results.map((x) => x.latency.p99)),
+        p50Ms: median(rs.map((x) => x.p50)),
+        p99Ms: Math.max(...rs.map((x) => x.p99)),
         requests,
-        non2xx: results.reduce((s, x) => s + x.non2xx, 0),
-        errors: results.reduce((s, x) => s + x.errors, 0),
-        timeouts: results.reduce((s, x) => s + x.timeouts, 0),
+        non2xx: rs.reduce((s, x) => s + x.non2xx, 0),
+        errors: rs.reduce((s, x) => s + x.errors, 0),
+        timeouts: rs.reduce((s, x) => s + x.timeouts, 0),
       };
     });
     for (const f of figures) {
