@@ -63,6 +63,8 @@ export interface EndpointFigures {
   cpuUsPerReq: number;
   /** /health's CPU per request divided by this endpoint's (median over rounds). */
   costToHealth: number;
+  /** Share of the single-point answers taken from the kept ones (NaN when none were asked). */
+  keptShare: number;
   p50Ms: number;
   /** Largest p99 latency of the rounds, ms. */
   p99Ms: number;
@@ -108,12 +110,22 @@ function cannon(opts: autocannon.Options): Promise<autocannon.Result> {
   });
 }
 
-/** The server's CPU seconds so far, read from its Prometheus metrics. */
-async function serverCpuS(base: string): Promise<number> {
+interface ServerCounters {
+  cpuS: number;
+  /** Single-point answers taken from the kept ones, and solved. */
+  kept: number;
+  solved: number;
+}
+
+/** The server's CPU seconds and single-point answer counts so far, read from its Prometheus metrics. */
+async function serverCounters(base: string): Promise<ServerCounters> {
   const text = await (await fetch(`${base}/metrics`)).text();
-  const m = /^process_cpu_seconds_total\s+([0-9.eE+-]+)$/m.exec(text);
-  if (!m) throw new Error('process_cpu_seconds_total is missing from /metrics');
-  return Number(m[1]);
+  const read = (name: string) => {
+    const m = new RegExp(`^${name.replace(/[{}"]/g, (c) => `\\${c}`)}\\s+([0-9.eE+-]+)$`, 'm').exec(text);
+    if (!m) throw new Error(`${name} is missing from /metrics`);
+    return Number(m[1]);
+  };
+  return { cpuS: read('process_cpu_seconds_total'), kept: read('episplit_point_answers_total{source="kept"}'), solved: read('episplit_point_answers_total{source="solved"}') };
 }
 
 async function startServer(port: number, dataDir: string, maxBatchPoints: number): Promise<ChildProcess> {
@@ -152,6 +164,8 @@ interface Endpoint {
 interface RoundFigure {
   rps: number;
   cpuUs: number;
+  kept: number;
+  solved: number;
   requests: number;
   duration: number;
   p50: number;
@@ -214,14 +228,16 @@ export async function runHttpBench(opts: HttpBenchOptions = {}): Promise<Figures
     log(`http bench: server ${SERVER} (child process) on ${base}; autocannon in this process, ${connections} connections, each its own request sequence; ${rounds} rounds × ${roundS} s per endpoint`);
     const run = async (e: Endpoint, round: number, seconds: number): Promise<RoundFigure> => {
       const streams = Array.from({ length: connections }, (_, c) => e.requests(round, c));
-      const c0 = await serverCpuS(base);
+      const c0 = await serverCounters(base);
       const results = await Promise.all(streams.map((requests) => cannon({ url: base, connections: 1, duration: seconds, requests })));
-      const c1 = await serverCpuS(base);
+      const c1 = await serverCounters(base);
       const requests = results.reduce((s, x) => s + x.requests.total, 0);
       const duration = Math.max(...results.map((x) => x.duration));
       return {
         rps: requests / duration,
-        cpuUs: ((c1 - c0) * 1e6) / Math.max(1, requests),
+        cpuUs: ((c1.cpuS - c0.cpuS) * 1e6) / Math.max(1, requests),
+        kept: c1.kept - c0.kept,
+        solved: c1.solved - c0.solved,
         requests,
         duration,
         p50: median(results.map((x) => x.latency.p50)),
@@ -245,6 +261,7 @@ export async function runHttpBench(opts: HttpBenchOptions = {}): Promise<Figures
         toHealth: median(rs.map((x, k) => x.rps / health[k]!.rps)),
         cpuUsPerReq: median(rs.map((x) => x.cpuUs)),
         costToHealth: median(rs.map((x, k) => health[k]!.cpuUs / x.cpuUs)),
+        keptShare: rs.reduce((s, x) => s + x.kept, 0) / rs.reduce((s, x) => s + x.kept + x.solved, 0),
         p50Ms: median(rs.map((x) => x.p50)),
         p99Ms: Math.max(...rs.map((x) => x.p99)),
         requests,
@@ -256,6 +273,7 @@ export async function runHttpBench(opts: HttpBenchOptions = {}): Promise<Figures
     for (const f of figures) {
       log(
         `${f.label}: ${f.reqPerS.toFixed(0)} req/s, ${f.toHealth.toFixed(2)} of /health; server CPU ${f.cpuUsPerReq.toFixed(0)} µs/request, cost ratio ${f.costToHealth.toFixed(2)}; ` +
+          (Number.isNaN(f.keptShare) ? '' : `answers kept from before ${(100 * f.keptShare).toFixed(0)} %; `) +
           `p50 ${f.p50Ms.toFixed(1)} ms, p99 ${f.p99Ms.toFixed(1)} ms (worst round); ${f.requests} requests, non-2xx ${f.non2xx}, errors ${f.errors}, timeouts ${f.timeouts}`,
       );
     }
