@@ -178,8 +178,8 @@ describe('machine documents built on worker threads', () => {
       { doc: oneSpeed, code: 'fit-failed', path: 'points' },
       // a loss of about −5 kW
       { doc: negative, code: 'map-invalid', path: 'points[3].electricalW' },
-      // 400 even speeds plus an envelope corner off them: 401 speed nodes, found after the fit
-      { doc: pointsMap(200, 3, 400, [0, 5000, 12000]), code: 'map-invalid', path: 'speedRpm' },
+      // 400 even speeds plus an envelope corner off them: 401 grid speeds, refused before the fit
+      { doc: pointsMap(200, 3, 400, [0, 5000, 12000]), code: 'map-invalid', path: 'envelope.speedRpm' },
       // the back-EMF at 40 000 rpm exceeds V_dc/√3 even at no load
       { doc: { ...ringDoc, maxSpeedRpm: 40_000 }, code: 'map-invalid', path: 'dcVoltageV' },
       // Lq < Ld is outside the model

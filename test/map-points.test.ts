@@ -193,6 +193,22 @@ describe('pointsToGrid', () => {
     bad({ minTorqueNm: [-250, -250, -125] }, 'envelope.minTorqueNm');
   });
 
+  it('refuses an envelope that would give the grid more speeds than an axis holds, before fitting', () => {
+    // 399 envelope speeds off the even steps (the envelope itself is within the schema's 400).
+    const speeds = Array.from({ length: 399 }, (_, i) => (i === 398 ? 12000 : i * 30 + 7 * Math.min(i, 1)));
+    const big = { speedRpm: speeds, maxTorqueNm: speeds.map(envMax), minTorqueNm: speeds.map((s) => -envMax(s)) };
+    // Points that could not be fitted either: the envelope is refused first, with its own path.
+    const pts = measuredPoints('electricalW').filter((p) => p.speedRpm === 3000);
+    const e = catchModelError(() => pointsToGrid(doc(pts, { envelope: big })));
+    expect(e.code).toBe('map-invalid');
+    expect(e.path).toBe('envelope.speedRpm');
+    expect(e.message).toMatch(/^the grid would have 428 speeds \(31 even steps/);
+    // 398 envelope speeds below the limit and 31 even steps, 0 shared: 428. With two even steps (0
+    // and 12000) the same envelope builds on 399 speeds.
+    const ok = pointsToGrid(doc(measuredPoints('electricalW'), { envelope: big, grid: { speedSteps: 2, torqueSteps: 61 } }));
+    expect(ok.grid.speedRpm).toHaveLength(399);
+  });
+
   it('reports a fit the points cannot support as fit-failed', () => {
     const pts = measuredPoints('electricalW').filter((p) => p.speedRpm === 3000);
     const e = catchModelError(() => pointsToGrid(doc(pts)));

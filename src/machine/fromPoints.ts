@@ -17,7 +17,7 @@
 import { ModelError, joinPath } from '../problem.js';
 import { RAD_S_PER_RPM, lossFromEfficiency } from '../units.js';
 import { type LossFit, evaluateLossPolynomial, fitLossPolynomial } from './fitLoss.js';
-import { type GridInput, type MapProvenance, interp1 } from './map.js';
+import { type GridInput, type MapProvenance, MAX_AXIS_LENGTH, interp1 } from './map.js';
 import type { PointsMapDoc } from './schema.js';
 
 /** Measured loss below −(NEGATIVE_LOSS_REL·|P_mech| + NEGATIVE_LOSS_ABS_W) is refused. */
@@ -160,12 +160,32 @@ function round(x: number): number {
 }
 
 /**
+ * Grid speeds (rpm): `grid.speedSteps` even speeds plus the envelope's own speeds below the limit,
+ * so the grid envelope keeps every corner of the given one (a chord between grid speeds could
+ * promise more torque). Refused before any fitting when there are more than the grid axis allows.
+ */
+function gridSpeeds(doc: PointsMapDoc): number[] {
+  const speedSteps = doc.grid?.speedSteps ?? 41;
+  const speeds = new Set<number>();
+  for (let i = 0; i < speedSteps; i++) speeds.add(i === speedSteps - 1 ? doc.maxSpeedRpm : (doc.maxSpeedRpm * i) / (speedSteps - 1));
+  for (const s of doc.envelope.speedRpm) if (s < doc.maxSpeedRpm) speeds.add(s);
+  if (speeds.size > MAX_AXIS_LENGTH) {
+    fail(
+      `the grid would have ${speeds.size} speeds (${speedSteps} even steps and the envelope's own speeds); at most ${MAX_AXIS_LENGTH} are allowed — give fewer envelope speeds or fewer grid.speedSteps`,
+      'envelope.speedRpm',
+    );
+  }
+  return [...speeds].sort((x, y) => x - y);
+}
+
+/**
  * Converts a `points` document into a grid for {@link buildMachineMap}. Units: rpm, N·m, W.
  * Throws ModelError 'map-invalid' (with the field path) for bad points or envelope, and
  * 'fit-failed' (path `points`) when the points cannot determine the polynomial.
  */
 export function pointsToGrid(doc: PointsMapDoc): { grid: GridInput; provenance: MapProvenance } {
   checkEnvelope(doc);
+  const speedRpm = gridSpeeds(doc);
   const samples = pointLosses(doc);
   const fitOpts = doc.fit ?? { speedDegree: 3, torqueDegree: 3 };
   let fit: LossFit;
@@ -176,15 +196,8 @@ export function pointsToGrid(doc: PointsMapDoc): { grid: GridInput; provenance: 
     throw e;
   }
 
-  const speedSteps = doc.grid?.speedSteps ?? 41;
   const torqueSteps = doc.grid?.torqueSteps ?? 61;
   const env = doc.envelope;
-  // Even speeds plus the envelope's own speeds below the limit, so the grid envelope keeps every
-  // corner of the given one (a chord between grid speeds could promise more torque).
-  const speeds = new Set<number>();
-  for (let i = 0; i < speedSteps; i++) speeds.add(i === speedSteps - 1 ? doc.maxSpeedRpm : (doc.maxSpeedRpm * i) / (speedSteps - 1));
-  for (const s of env.speedRpm) if (s < doc.maxSpeedRpm) speeds.add(s);
-  const speedRpm = [...speeds].sort((x, y) => x - y);
   const maxTorqueNm = speedRpm.map((s) => interp1(env.speedRpm, env.maxTorqueNm, s));
   const minTorqueNm = speedRpm.map((s) => interp1(env.speedRpm, env.minTorqueNm, s));
   const lo = Math.min(...minTorqueNm);
