@@ -81,8 +81,12 @@ describe('cycle jobs on worker threads', () => {
     expect([speed.body.error.code, speed.body.error.path]).toEqual(['cycle-invalid', 'cycle.speedKph[1]']);
     const veh = await request(url).post('').send({ vehicle: { ...van, wheelRadiusM: 0 }, cycle: { builtin: 'nedc' } }).expect(422);
     expect([veh.body.error.code, veh.body.error.path]).toEqual(['vehicle-invalid', 'vehicle.wheelRadiusM']);
-    const big = await request(url).post('').send({ vehicle: van, cycle: longCycle(50_002), switchCostsWh: [0] }).expect(413);
+    // Bounds come from the cycle's own run; a comparison adds the three layouts that run is not.
+    const big = await request(url).post('').send({ vehicle: van, cycle: longCycle(50_002), compare: true, switchCostsWh: [0] }).expect(413);
     expect([big.body.error.code, big.body.error.path]).toEqual(['too-large', 'cycle']);
+    expect(big.body.error.message).toMatch(/^50001 steps × 4 runs exceed/);
+    const restricted = await request(url).post('').send({ vehicle: van, cycle: longCycle(50_002), compare: true, modes: ['split', 'locked'] }).expect(413);
+    expect(restricted.body.error.message).toMatch(/^50001 steps × 5 runs exceed/);
     const plot = await request(`${url}/plot.svg`).post('').send({ vehicle: van, cycle: { csv: 'timeS,speedKph\n0,0\n0,1' } }).expect(422);
     expect([plot.body.error.code, plot.body.error.path]).toEqual(['cycle-invalid', 'cycle.timeS[1]']);
   });

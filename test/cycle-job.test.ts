@@ -8,7 +8,7 @@ import { describe, expect, it } from 'vitest';
 import { cycleBounds } from '../src/vehicle/bound.js';
 import { compareLayouts } from '../src/vehicle/compare.js';
 import { runCycle } from '../src/vehicle/cycleEnergy.js';
-import { runCycleJob, type CycleJobOptions } from '../src/vehicle/cycleJob.js';
+import { cycleJobRuns, runCycleJob, type CycleJobOptions } from '../src/vehicle/cycleJob.js';
 import { getBuiltinCycle } from '../src/vehicle/cycles.js';
 import { validateCycleTrace, type Cycle, type Vehicle } from '../src/vehicle/schema.js';
 import type { Drivetrain } from '../src/solver/drivetrain.js';
@@ -58,6 +58,15 @@ describe('a cycle job with comparison and bounds', () => {
       expect('modeEnergyWh' in shared.result || 'modeIndex' in shared.result || 'stepDurationS' in shared.result).toBe(false);
     });
   }
+
+  it('counts the runs of the cycle it makes, which the service caps', () => {
+    expect(cycleJobRuns(dt, {})).toBe(1);
+    expect(cycleJobRuns(dt, { compare: true })).toBe(4); // its own run is the full layout
+    expect(cycleJobRuns(dt, { compare: true, modes: ['locked', 'sun-held', 'ring-held', 'split'] })).toBe(4);
+    expect(cycleJobRuns(dt, { compare: true, modes: ['split', 'locked'] })).toBe(5);
+    const noDevices = testDrivetrain({ devices: false });
+    expect(cycleJobRuns(noDevices, { compare: true, modes: ['split'] })).toBe(4);
+  });
 
   it('covers steps the drivetrain cannot follow and bounds that spend time in several modes', () => {
     const a = runCycleJob(dt, car, hard, { compare: true, switchCostsWh: [0] });

@@ -10,7 +10,7 @@ import { modeMask } from '../solver/modes.js';
 import type { Drivetrain } from '../solver/drivetrain.js';
 import type { Mode, SolveOptions } from '../solver/types.js';
 import { boundFromRun, type CycleBound } from './bound.js';
-import { compareLayouts, type LayoutComparison } from './compare.js';
+import { compareLayouts, LAYOUTS, type LayoutComparison } from './compare.js';
 import { runCycle, type CycleResult } from './cycleEnergy.js';
 import type { Cycle, Vehicle } from './schema.js';
 
@@ -34,6 +34,23 @@ export interface CycleJobAnswer {
   bounds?: CycleBound[];
 }
 
+/**
+ * Whether the cycle's own run is the comparison's `full` layout: the solver sees modes only
+ * through the mask, so equal masks solve every step alike.
+ */
+function runIsFullLayout(dt: Drivetrain, modes: readonly Mode[] | undefined): boolean {
+  return modeMask(dt, modes) === modeMask(dt);
+}
+
+/**
+ * Runs of the whole cycle a job solves: its own, and for a comparison every layout but the one
+ * that run already is. Bounds come from the cycle's own run and add none.
+ */
+export function cycleJobRuns(dt: Drivetrain, opts: Pick<CycleJobOptions, 'modes' | 'compare'>): number {
+  if (!opts.compare) return 1;
+  return 1 + LAYOUTS.length - (runIsFullLayout(dt, opts.modes) ? 1 : 0);
+}
+
 /** Runs what a cycle job asks for on `dt`; the answer is plain data (structured-clone and JSON safe). */
 export function runCycleJob(dt: Drivetrain, vehicle: Vehicle, cycle: Cycle, opts: CycleJobOptions = {}): CycleJobAnswer {
   const solve: SolveOptions = opts.modes ? { modes: opts.modes } : {};
@@ -50,9 +67,7 @@ export function runCycleJob(dt: Drivetrain, vehicle: Vehicle, cycle: Cycle, opts
   }
   let comparison: LayoutComparison | undefined;
   if (opts.compare) {
-    // The solver sees modes only through this mask: equal masks solve every step alike.
-    const everyMode = modeMask(dt, opts.modes) === modeMask(dt);
-    comparison = compareLayouts(dt, vehicle, cycle, { solve, ...(everyMode ? { fullRun: result } : {}) });
+    comparison = compareLayouts(dt, vehicle, cycle, { solve, ...(runIsFullLayout(dt, opts.modes) ? { fullRun: result } : {}) });
   }
   delete result.modeEnergyWh;
   delete result.modeIndex;

@@ -7,7 +7,7 @@
 import type { FastifyInstance } from 'fastify';
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
 import { z } from 'zod';
-import { runCycleJob, type CycleJobAnswer, type CycleJobOptions } from '../../vehicle/cycleJob.js';
+import { cycleJobRuns, runCycleJob, type CycleJobAnswer, type CycleJobOptions } from '../../vehicle/cycleJob.js';
 import { listBuiltinCycles } from '../../vehicle/cycles.js';
 import { parseCycleCsv, parseCycleInput, vehicleSchema, type Cycle, type Vehicle } from '../../vehicle/schema.js';
 import type { Drivetrain } from '../../solver/drivetrain.js';
@@ -49,11 +49,10 @@ export function resolveCycleBody(cycle: unknown): Cycle {
 }
 
 /**
- * Most cycle steps one request may solve, counting every run it asks for (the cycle, the four
- * layouts of a comparison, the bound; the job itself shares runs where the answer allows, so it
- * solves at most this many). The job runs on a worker thread, but it holds a thread and a job
- * slot while it runs: this keeps a request to a few seconds; longer jobs belong to the command
- * line (`episplit cycle`).
+ * Most cycle steps one request may solve, counting every run the job makes (see cycleJobRuns:
+ * the cycle, and the layouts of a comparison it is not already; bounds add none). The job runs on
+ * a worker thread, but it holds a thread and a job slot while it runs: this keeps a request to a
+ * few seconds; longer jobs belong to the command line (`episplit cycle`).
  */
 export const MAX_CYCLE_WORK_STEPS = 100_000;
 
@@ -65,14 +64,14 @@ export interface PreparedCycleJob {
 }
 
 /** Resolves the request's cycle and refuses work beyond {@link MAX_CYCLE_WORK_STEPS} (cheap; on the calling thread). */
-export function prepareCycleJob(body: CycleRequest): PreparedCycleJob {
+export function prepareCycleJob(dt: Drivetrain, body: CycleRequest): PreparedCycleJob {
   const cycle = resolveCycleBody(body.cycle);
   const steps = cycle.timeS.length - 1;
-  const runs = 1 + (body.compare ? 4 : 0) + (body.switchCostsWh ? 1 : 0);
+  const runs = cycleJobRuns(dt, { compare: body.compare, ...(body.modes ? { modes: body.modes as Mode[] } : {}) });
   if (steps * runs > MAX_CYCLE_WORK_STEPS) {
     throw new ApiError(
       'too-large',
-      `${steps} steps × ${runs} runs exceed the ${MAX_CYCLE_WORK_STEPS} cycle steps one request may solve; drop compare or the bounds, or use the command line`,
+      `${steps} steps × ${runs} runs exceed the ${MAX_CYCLE_WORK_STEPS} cycle steps one request may solve; drop compare, or use the command line`,
       'cycle',
     );
   }
@@ -91,7 +90,7 @@ export function prepareCycleJob(body: CycleRequest): PreparedCycleJob {
 
 /** Runs what a cycle request asks for, in process; plain objects only. The routes run the same job on a worker. */
 export function answerCycle(dt: Drivetrain, body: CycleRequest): CycleJobAnswer {
-  const job = prepareCycleJob(body);
+  const job = prepareCycleJob(dt, body);
   return runCycleJob(dt, job.vehicle, job.cycle, job.options);
 }
 
@@ -147,7 +146,7 @@ export const cycleRoutes: FastifyPluginAsyncZod = async (app) => {
     },
     async (req, reply) => {
       const { dt, hash } = drivetrainOr404(app, req.params.name);
-      const job = prepareCycleJob(req.body);
+      const job = prepareCycleJob(dt, req.body);
       // The worker renders the answer as JSON text (JSON.stringify, as the app's serializer
       // does); fastify sends a string with a JSON content type as it is.
       const body = await pooledBody(app, dt, hash, job, 'json');
@@ -169,7 +168,7 @@ export const cycleRoutes: FastifyPluginAsyncZod = async (app) => {
     },
     async (req, reply) => {
       const { dt, hash } = drivetrainOr404(app, req.params.name);
-      const job = prepareCycleJob({ ...req.body, compare: false, switchCostsWh: undefined, series: true });
+      const job = prepareCycleJob(dt, { ...req.body, compare: false, switchCostsWh: undefined, series: true });
       const svg = await pooledBody(app, dt, hash, job, 'svg');
       return reply.type('image/svg+xml; charset=utf-8').send(svg);
     },
