@@ -78,10 +78,11 @@ export class PointAnswers {
     if (cost > MAX_ANSWER_CHARS || cost > this.maxChars) return;
     this.map.set(key, text);
     this.chars += cost;
-    for (const [k, v] of this.map) {
-      if (this.chars <= this.maxChars) break;
-      this.map.delete(k);
-      this.chars -= k.length + v.length;
+    // Oldest first: a Map iterates in insertion order, and a hit is inserted again.
+    while (this.chars > this.maxChars) {
+      const oldest = this.map.keys().next().value!;
+      this.chars -= oldest.length + this.map.get(oldest)!.length;
+      this.map.delete(oldest);
     }
   }
 }
