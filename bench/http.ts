@@ -13,7 +13,7 @@
  * is the bottleneck. Then a 10 000-point batch over HTTP against the same points solved in this
  * process.
  *
- * Run alone: `npm run build && npx tsx bench/http.ts`. Figures are ratios within one run;
+ * Run alone: `npm run build && npx tsx bench/http.ts [--connections N] [--rounds N] [--seconds S]`. Figures are ratios within one run;
  * absolute rates depend on the machine and on whatever else runs on it.
  */
 import { spawn, type ChildProcess } from 'node:child_process';
@@ -49,6 +49,8 @@ export interface HttpBenchOptions {
   batchPoints?: number;
   /** Timed repetitions of the batch, median reported (default 3, at most 9). */
   batchRepeats?: number;
+  /** Also time the batch (default true). */
+  batch?: boolean;
   /** Where the plain result lines go (default console.log). */
   log?: (line: string) => void;
 }
@@ -76,7 +78,7 @@ export interface EndpointFigures {
 
 export interface Figures {
   endpoints: EndpointFigures[];
-  batch: {
+  batch?: {
     points: number;
     /** Median time from sending the request to the last byte of the answer, ms. */
     httpMs: number;
@@ -225,7 +227,7 @@ export async function runHttpBench(opts: HttpBenchOptions = {}): Promise<Figures
       { label: `GET ${oneRoute} (the same 256 points over and over: kept answers)`, requests: () => fixedSpread.map((p) => get(p)) },
     ];
 
-    log(`http bench: server ${SERVER} (child process) on ${base}; autocannon in this process, ${connections} connections, each its own request sequence; ${rounds} rounds × ${roundS} s per endpoint`);
+    log(`http bench: server ${SERVER} (child process) on ${base}; autocannon in this process, ${connections} connection${connections === 1 ? "" : "s"}, each its own request sequence; ${rounds} rounds × ${roundS} s per endpoint`);
     const run = async (e: Endpoint, round: number, seconds: number): Promise<RoundFigure> => {
       const streams = Array.from({ length: connections }, (_, c) => e.requests(round, c));
       const c0 = await serverCounters(base);
@@ -280,6 +282,7 @@ export async function runHttpBench(opts: HttpBenchOptions = {}): Promise<Figures
     const single = figures.slice(1);
     log(`single point / health, median of rounds (target >= 0.5): ${single.map((f) => f.toHealth.toFixed(2)).join(', ')} (in the order above); cost ratios ${single.map((f) => f.costToHealth.toFixed(2)).join(', ')}`);
 
+    if (opts.batch === false) return { endpoints: figures };
     // Batch: HTTP end to end against the solver in this process, same points, median of the repeats.
     const points = spreadPoints(batchPoints, facts.maxWheelSpeedRpm, facts.standstillMaxWheelNm, 11);
     const body = JSON.stringify({ points });
@@ -328,7 +331,14 @@ export async function runHttpBench(opts: HttpBenchOptions = {}): Promise<Figures
 }
 
 if (process.argv[1] && import.meta.url === pathToFileURL(process.argv[1]).href) {
-  runHttpBench().catch((err: unknown) => {
+  // Alone: `npx tsx bench/http.ts [--connections N] [--rounds N] [--seconds S]`.
+  const arg = (name: string) => {
+    const i = process.argv.indexOf(`--${name}`);
+    return i > 0 && process.argv[i + 1] !== undefined ? Number(process.argv[i + 1]) : undefined;
+  };
+  const given = { connections: arg('connections'), rounds: arg('rounds'), roundS: arg('seconds') };
+  const opts = Object.fromEntries(Object.entries(given).filter(([, v]) => v !== undefined && Number.isFinite(v))) as HttpBenchOptions;
+  runHttpBench(opts).catch((err: unknown) => {
     console.error(err);
     process.exit(1);
   });

@@ -5,8 +5,8 @@
  *  1. per-point solver on the demo drivetrain vs a dense scan of the free variable;
  *  2. a 201 × 201 table: in process (baseline) vs the worker pool with 1 thread and all cores;
  *  3. an 1800-step drive cycle vs solving the same 1800 wheel points bare;
- *  4. HTTP (autocannon on loopback): single-point throughput vs GET /health, and a 10 000-point
- *     batch vs the same points solved in process.
+ *  4. HTTP (autocannon on loopback): single-point throughput vs GET /health with one connection
+ *     and with four, and a 10 000-point batch vs the same points solved in process.
  * Options: --quick (shorter HTTP runs), --skip-http.
  */
 import { availableParallelism } from 'node:os';
@@ -81,5 +81,9 @@ console.log(`cycle of ${cycle.timeS.length - 1} steps: ${cyc.toFixed(1)} ms; bar
 
 // 4. HTTP.
 if (!args.has('--skip-http')) {
-  await runHttpBench(args.has('--quick') ? { rounds: 3, roundS: 1 } : {});
+  // One connection is one simulation stepping point by point (each answer awaited before the next
+  // request); four are several at once, the server's throughput.
+  const length = args.has('--quick') ? { rounds: 3, roundS: 1 } : {};
+  await runHttpBench({ ...length, connections: 1, batch: false });
+  await runHttpBench({ ...length, connections: 4 });
 }
