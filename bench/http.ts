@@ -227,7 +227,7 @@ export async function runHttpBench(opts: HttpBenchOptions = {}): Promise<Figures
       { label: `GET ${oneRoute} (the same 256 points over and over: kept answers)`, requests: () => fixedSpread.map((p) => get(p)) },
     ];
 
-    log(`http bench: server ${SERVER} (child process) on ${base}; autocannon in this process, ${connections} connection${connections === 1 ? "" : "s"}, each its own request sequence; ${rounds} rounds × ${roundS} s per endpoint`);
+    log(`http bench: server ${SERVER} (child process) on ${base}; autocannon in this process, ${connections} connection${connections === 1 ? '' : 's'}, each its own request sequence; ${rounds} rounds × ${roundS} s per endpoint`);
     const run = async (e: Endpoint, round: number, seconds: number): Promise<RoundFigure> => {
       const streams = Array.from({ length: connections }, (_, c) => e.requests(round, c));
       const c0 = await serverCounters(base);
