@@ -104,6 +104,16 @@ export function spreadPoints(n: number, maxWheelSpeedRpm: number, maxWheelNm: nu
   }));
 }
 
+/**
+ * The NEDC wheel demand, step by step, of an invented 2 t delivery van (our own demo scenario)
+ * carrying `payloadKg` more, on wheels of the given radius (m).
+ */
+export function nedcVanPass(wheelRadiusM: number, payloadKg: number): WheelPoint[] {
+  const van = parseVehicle({ massKg: 2000 + payloadKg, rotatingMassFactor: 0.05, rollingResistance: 0.011, dragAreaM2: 1.9, auxiliaryW: 400 });
+  const demand = cycleWheelDemand(van, getBuiltinCycle('nedc'), wheelRadiusM);
+  return Array.from({ length: demand.steps }, (_, k) => ({ wheelSpeedRpm: radSToRpm(demand.wheelSpeedRadS[k]!), wheelTorqueNm: demand.wheelTorqueNm[k]! }));
+}
+
 const clamp = (x: number, lo: number, hi: number) => Math.min(hi, Math.max(lo, x));
 
 function cannon(opts: autocannon.Options): Promise<autocannon.Result> {
@@ -130,8 +140,9 @@ async function serverCounters(base: string): Promise<ServerCounters> {
   return { cpuS: read('process_cpu_seconds_total'), kept: read('episplit_point_answers_total{source="kept"}'), solved: read('episplit_point_answers_total{source="solved"}') };
 }
 
-async function startServer(port: number, dataDir: string, maxBatchPoints: number): Promise<ChildProcess> {
-  const child = spawn(process.execPath, [SERVER], {
+/** Starts the compiled server (with extra node options, if any) and waits until it is ready. */
+export async function startServer(port: number, dataDir: string, maxBatchPoints: number, nodeArgs: string[] = []): Promise<ChildProcess> {
+  const child = spawn(process.execPath, [...nodeArgs, SERVER], {
     env: { ...process.env, PORT: String(port), HOST: '127.0.0.1', MAPS_DIR, DATA_DIR: dataDir, LOG_LEVEL: 'warn', MAX_BATCH_POINTS: String(maxBatchPoints) },
     stdio: ['ignore', 'ignore', 'inherit'],
   });
@@ -205,15 +216,9 @@ export async function runHttpBench(opts: HttpBenchOptions = {}): Promise<Figures
     const perStream = Math.ceil(roundS * 10_000);
     const stream = (round: number, c: number) => 1 + (round + 1) * connections + c;
     const spread = (round: number, c: number, salt: number) => spreadPoints(perStream, facts.maxWheelSpeedRpm, facts.standstillMaxWheelNm, 7919 * stream(round, c) + salt);
-    // The NEDC wheel demand of an invented delivery van (our own demo scenario), one pass per
-    // payload: each pass is a van 1 kg heavier than the one before, so passes share only the
-    // standstill points, and every repeat is one the cycle itself makes (idle, cruise).
-    const cycle = getBuiltinCycle('nedc');
-    const vanPass = (j: number): WheelPoint[] => {
-      const van = parseVehicle({ massKg: 2000 + j, rotatingMassFactor: 0.05, rollingResistance: 0.011, dragAreaM2: 1.9, auxiliaryW: 400 });
-      const demand = cycleWheelDemand(van, cycle, dt.wheelRadiusM);
-      return Array.from({ length: demand.steps }, (_, k) => ({ wheelSpeedRpm: radSToRpm(demand.wheelSpeedRadS[k]!), wheelTorqueNm: demand.wheelTorqueNm[k]! }));
-    };
+    // One NEDC pass per payload: passes share only the standstill points, and every repeat is one
+    // the cycle itself makes (idle, cruise).
+    const vanPass = (j: number) => nedcVanPass(dt.wheelRadiusM, j);
     const passLength = vanPass(0).length;
     const passesPerStream = Math.ceil(perStream / passLength);
     const nedc = (round: number, c: number) => Array.from({ length: passesPerStream }, (_, i) => vanPass(stream(round, c) * passesPerStream + i)).flat();
