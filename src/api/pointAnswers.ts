@@ -9,17 +9,12 @@
 import type { Drivetrain } from '../solver/drivetrain.js';
 import { modeMask } from '../solver/modes.js';
 import { solvePoint } from '../solver/point.js';
-import type { Mode, SolveOptions } from '../solver/types.js';
+import type { SolveOptions } from '../solver/types.js';
+import { SizedLru } from './sizedLru.js';
 
 export interface PointQuery {
   wheelSpeedRpm: number;
   wheelTorqueNm: number;
-}
-
-export interface PointOptions {
-  modes?: Mode[] | undefined;
-  strict: boolean;
-  alternatives: boolean;
 }
 
 /** Largest answer kept, characters (a point answer with every alternative is under 2 000). */
@@ -28,39 +23,38 @@ const MAX_ANSWER_CHARS = 16 * 1024;
 export class PointAnswers {
   private readonly ids = new WeakMap<Drivetrain, number>();
   private nextId = 0;
-  private readonly map = new Map<string, string>();
-  private chars = 0;
-  /** Answers taken from the cache and answers solved, since the start. */
+  private readonly kept: SizedLru<string>;
+  /** Answers taken from the kept ones and answers solved, since the start. */
   hits = 0;
   misses = 0;
 
-  /** @param maxChars total size of the kept answers, characters (0: keep none). */
-  constructor(private readonly maxChars: number) {}
+  /** @param maxChars total size of the kept answers and their keys, characters (0: keep none). */
+  constructor(maxChars: number) {
+    this.kept = new SizedLru<string>(maxChars, (key, text) => key.length + text.length, MAX_ANSWER_CHARS);
+  }
 
   /** Answers kept now. */
   get size(): number {
-    return this.map.size;
+    return this.kept.size;
   }
 
   /**
    * The JSON text of {@link solvePoint}'s answer at one point. -0 is asked as 0 (the JSON text
    * of either is the same). A ModelError from the solver propagates and nothing is kept.
    */
-  answer(dt: Drivetrain, p: PointQuery, o: PointOptions): string {
+  answer(dt: Drivetrain, p: PointQuery, opts: SolveOptions): string {
     const speed = p.wheelSpeedRpm + 0;
     const torque = p.wheelTorqueNm + 0;
-    const key = `${this.idOf(dt)} ${modeMask(dt, o.modes)} ${o.strict ? 1 : 0}${o.alternatives ? 1 : 0} ${speed} ${torque}`;
-    const kept = this.map.get(key);
-    if (kept !== undefined) {
+    // The options as the solver reads them: strict defaults to off, alternatives to on.
+    const key = `${this.idOf(dt)} ${modeMask(dt, opts.modes)} ${opts.strict ? 1 : 0}${opts.alternatives !== false ? 1 : 0} ${speed} ${torque}`;
+    const hit = this.kept.get(key);
+    if (hit !== undefined) {
       this.hits++;
-      this.map.delete(key);
-      this.map.set(key, kept);
-      return kept;
+      return hit;
     }
     this.misses++;
-    const opts: SolveOptions = o.modes ? { modes: o.modes, strict: o.strict, alternatives: o.alternatives } : { strict: o.strict, alternatives: o.alternatives };
     const text = JSON.stringify(solvePoint(dt, speed, torque, opts));
-    this.keep(key, text);
+    this.kept.set(key, text);
     return text;
   }
 
@@ -71,18 +65,5 @@ export class PointAnswers {
       this.ids.set(dt, id);
     }
     return id;
-  }
-
-  private keep(key: string, text: string): void {
-    const cost = key.length + text.length;
-    if (cost > MAX_ANSWER_CHARS || cost > this.maxChars) return;
-    this.map.set(key, text);
-    this.chars += cost;
-    // Oldest first: a Map iterates in insertion order, and a hit is inserted again.
-    while (this.chars > this.maxChars) {
-      const oldest = this.map.keys().next().value!;
-      this.chars -= oldest.length + this.map.get(oldest)!.length;
-      this.map.delete(oldest);
-    }
   }
 }

@@ -3,6 +3,7 @@ import type { FastifyInstance } from 'fastify';
 import type { Drivetrain } from '../../solver/drivetrain.js';
 import { parseAxisText } from '../../solver/tableSpec.js';
 import { ApiError } from '../errors.js';
+import { SizedLru } from '../sizedLru.js';
 
 /** The built drivetrain and its content hash (document + machines), or a 404. */
 export function drivetrainOr404(app: FastifyInstance, name: string): { dt: Drivetrain; hash: string } {
@@ -22,32 +23,9 @@ export interface CachedBody<B extends string | Buffer = string> {
  * A least-recently-used cache of rendered bodies keyed by content hash, bounded by total size
  * (characters of text, bytes of byte bodies); a body larger than a quarter of the bound is not kept.
  */
-export class BodyCache<B extends string | Buffer = string> {
-  private readonly map = new Map<string, CachedBody<B>>();
-  private size = 0;
-  constructor(private readonly maxChars: number) {}
-  get(key: string): CachedBody<B> | undefined {
-    const hit = this.map.get(key);
-    if (hit) {
-      this.map.delete(key);
-      this.map.set(key, hit);
-    }
-    return hit;
-  }
-  set(key: string, value: CachedBody<B>): void {
-    if (value.body.length > this.maxChars / 4) return;
-    const old = this.map.get(key);
-    if (old) {
-      this.size -= old.body.length;
-      this.map.delete(key);
-    }
-    this.map.set(key, value);
-    this.size += value.body.length;
-    for (const [k, v] of this.map) {
-      if (this.size <= this.maxChars) break;
-      this.map.delete(k);
-      this.size -= v.body.length;
-    }
+export class BodyCache<B extends string | Buffer = string> extends SizedLru<CachedBody<B>> {
+  constructor(maxChars: number) {
+    super(maxChars, (_key, value) => value.body.length, maxChars / 4);
   }
 }
 

@@ -73,7 +73,8 @@ export const operatingPointRoutes: FastifyPluginAsyncZod = async (app) => {
       // The text JSON.stringify gives for { results }, put together from the kept answers; fastify
       // sends a string with a JSON content type as it is.
       app.metrics.solverPoints.inc(points.length);
-      const texts = points.map((p) => kept.answer(dt, p, { modes, strict, alternatives }));
+      const opts = solveOptions(modes, strict, alternatives);
+      const texts = points.map((p) => kept.answer(dt, p, opts));
       return reply.type(JSON_TYPE).send(`{"results":[${texts.join(',')}]}` as unknown as { results: PointResult[] });
     },
   );
@@ -93,7 +94,7 @@ export const operatingPointRoutes: FastifyPluginAsyncZod = async (app) => {
       const q = req.query;
       const dt = stored(req.params.name);
       app.metrics.solverPoints.inc(1);
-      return reply.type(JSON_TYPE).send(kept.answer(dt, q, q) as unknown as PointResult);
+      return reply.type(JSON_TYPE).send(kept.answer(dt, q, solveOptions(q.modes, q.strict, q.alternatives)) as unknown as PointResult);
     },
   );
 
