@@ -122,6 +122,20 @@ function cannon(opts: autocannon.Options): Promise<autocannon.Result> {
   });
 }
 
+/**
+ * Loads `url` for `seconds` with one autocannon per stream, each one connection sending its own
+ * requests in order (autocannon walks one list from the start on every connection, so given one
+ * list four connections would ask the same thing at the same moment).
+ */
+export function loadPerConnection(url: string, streams: autocannon.Request[][], seconds: number): Promise<autocannon.Result[]> {
+  return Promise.all(streams.map((requests) => cannon({ url, connections: 1, duration: seconds, requests })));
+}
+
+/** GET of one wheel point on the demo drivetrain, with more query text if given. */
+export function pointGet(p: WheelPoint, extra = ''): autocannon.Request {
+  return { method: 'GET', path: `/v1/drivetrains/${DRIVETRAIN}/operating-point?wheelSpeedRpm=${p.wheelSpeedRpm}&wheelTorqueNm=${p.wheelTorqueNm}${extra}` };
+}
+
 interface ServerCounters {
   cpuS: number;
   /** Single-point answers taken from the kept ones, and solved. */
@@ -210,7 +224,6 @@ export async function runHttpBench(opts: HttpBenchOptions = {}): Promise<Figures
   try {
     const batchRoute = `/v1/drivetrains/${DRIVETRAIN}/operating-points`;
     const oneRoute = `/v1/drivetrains/${DRIVETRAIN}/operating-point`;
-    const get = (p: WheelPoint, extra = '') => ({ method: 'GET' as const, path: `${oneRoute}?wheelSpeedRpm=${p.wheelSpeedRpm}&wheelTorqueNm=${p.wheelTorqueNm}${extra}` });
     const post = (p: WheelPoint) => ({ method: 'POST' as const, path: batchRoute, headers: { 'content-type': 'application/json' }, body: JSON.stringify({ points: [p] }) });
     // More requests per connection and round than one connection answers in a round at 10 000 req/s.
     const perStream = Math.ceil(roundS * 10_000);
@@ -225,18 +238,18 @@ export async function runHttpBench(opts: HttpBenchOptions = {}): Promise<Figures
     const fixedSpread = spreadPoints(256, facts.maxWheelSpeedRpm, facts.standstillMaxWheelNm, 7);
     const endpoints: Endpoint[] = [
       { label: 'GET /health', requests: () => [{ method: 'GET', path: '/health' }] },
-      { label: `GET ${oneRoute} (spread over the speed × torque box, every point new)`, requests: (r, c) => spread(r, c, 1).map((p) => get(p)) },
+      { label: `GET ${oneRoute} (spread over the speed × torque box, every point new)`, requests: (r, c) => spread(r, c, 1).map((p) => pointGet(p)) },
       { label: `POST ${batchRoute} (spread, every point new, 1 point per body)`, requests: (r, c) => spread(r, c, 2).map(post) },
-      { label: `GET ${oneRoute} (NEDC wheel demand of the demo van, ${passLength} steps a pass, a new payload each pass)`, requests: (r, c) => nedc(r, c).map((p) => get(p)) },
-      { label: `GET ${oneRoute} (the same drive-cycle passes, alternatives=false)`, requests: (r, c) => nedc(r, c).map((p) => get(p, '&alternatives=false')) },
-      { label: `GET ${oneRoute} (the same 256 points over and over: kept answers)`, requests: () => fixedSpread.map((p) => get(p)) },
+      { label: `GET ${oneRoute} (NEDC wheel demand of the demo van, ${passLength} steps a pass, a new payload each pass)`, requests: (r, c) => nedc(r, c).map((p) => pointGet(p)) },
+      { label: `GET ${oneRoute} (the same drive-cycle passes, alternatives=false)`, requests: (r, c) => nedc(r, c).map((p) => pointGet(p, '&alternatives=false')) },
+      { label: `GET ${oneRoute} (the same 256 points over and over: kept answers)`, requests: () => fixedSpread.map((p) => pointGet(p)) },
     ];
 
     log(`http bench: server ${SERVER} (child process) on ${base}; autocannon in this process, ${connections} connection${connections === 1 ? '' : 's'}, each its own request sequence; ${rounds} rounds × ${roundS} s per endpoint`);
     const run = async (e: Endpoint, round: number, seconds: number): Promise<RoundFigure> => {
       const streams = Array.from({ length: connections }, (_, c) => e.requests(round, c));
       const c0 = await serverCounters(base);
-      const results = await Promise.all(streams.map((requests) => cannon({ url: base, connections: 1, duration: seconds, requests })));
+      const results = await loadPerConnection(base, streams, seconds);
       const c1 = await serverCounters(base);
       const requests = results.reduce((s, x) => s + x.requests.total, 0);
       const duration = Math.max(...results.map((x) => x.duration));

@@ -16,9 +16,8 @@ import autocannon from 'autocannon';
 import { freePort } from '../test/support/freePort.js';
 import { Registry } from '../src/store/registry.js';
 import { describeDrivetrain } from '../src/solver/drivetrain.js';
-import type { WheelPoint } from '../src/solver/point.js';
 import { summarizeProfile, type CpuProfile } from './cpuProfile.js';
-import { nedcVanPass, spreadPoints, startServer } from './http.js';
+import { loadPerConnection, nedcVanPass, pointGet, spreadPoints, startServer } from './http.js';
 
 const ROOT = path.resolve(import.meta.dirname, '..');
 const OUT = path.join(ROOT, 'tmp/profiles');
@@ -48,12 +47,13 @@ const facts = describeDrivetrain(dt);
 
 // Each connection its own sequence, long enough not to repeat within the run.
 const perConnection = Math.ceil(seconds * 12_000);
-const get = (p: WheelPoint) => ({ method: 'GET' as const, path: `/v1/drivetrains/van-axle/operating-point?wheelSpeedRpm=${p.wheelSpeedRpm}&wheelTorqueNm=${p.wheelTorqueNm}` });
 const requests = (c: number): autocannon.Request[] => {
   if (load === 'health') return [{ method: 'GET', path: '/health' }];
-  if (load === 'spread') return spreadPoints(perConnection, facts.maxWheelSpeedRpm, facts.standstillMaxWheelNm, 101 + c).map(get);
+  if (load === 'spread') return spreadPoints(perConnection, facts.maxWheelSpeedRpm, facts.standstillMaxWheelNm, 101 + c).map((p) => pointGet(p));
   const pass = nedcVanPass(dt.wheelRadiusM, 0).length;
-  return Array.from({ length: Math.ceil(perConnection / pass) }, (_, j) => nedcVanPass(dt.wheelRadiusM, 1000 * c + j)).flat().map(get);
+  return Array.from({ length: Math.ceil(perConnection / pass) }, (_, j) => nedcVanPass(dt.wheelRadiusM, 1000 * c + j))
+    .flat()
+    .map((p) => pointGet(p));
 };
 
 mkdirSync(OUT, { recursive: true });
@@ -62,13 +62,8 @@ const port = await freePort();
 const child = await startServer(port, dataDir, 200_000, ['--cpu-prof', `--cpu-prof-dir=${OUT}`]);
 let served = 0;
 try {
-  const results = await Promise.all(
-    Array.from({ length: connections }, (_, c) =>
-      new Promise<autocannon.Result>((resolve, reject) => {
-        autocannon({ url: `http://127.0.0.1:${port}`, connections: 1, duration: seconds, requests: requests(c) }, (err, r) => (err ? reject(err) : resolve(r)));
-      }),
-    ),
-  );
+  const streams = Array.from({ length: connections }, (_, c) => requests(c));
+  const results = await loadPerConnection(`http://127.0.0.1:${port}`, streams, seconds);
   served = results.reduce((s, r) => s + r.requests.total, 0);
   const bad = results.reduce((s, r) => s + r.non2xx + r.errors, 0);
   console.log(`${load}: ${served} requests in ${seconds} s over ${connections} connection${connections === 1 ? '' : 's'} (${(served / seconds).toFixed(0)} req/s), ${bad} not 2xx or failed`);
